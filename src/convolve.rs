@@ -1,0 +1,153 @@
+//! Finite convolution and cross-correlation of two slices into a caller's buffer.
+//!
+//! Lengths follow the usual three spans (the same conventions as `numpy.convolve` /
+//! `numpy.correlate`), with L = `signal.len()`, K = `kernel.len()`:
+//!
+//! | [`Span`] | output length | output\[i\] is full\[…\] |
+//! |---|---|---|
+//! | `Full` | L + K − 1 | i |
+//! | `Same` | max(L, K) | i + (min(L, K) − 1)/2 |
+//! | `Valid` | max(L, K) − min(L, K) + 1 | i + min(L, K) − 1 |
+//!
+//! Numeric behaviour is that of [`Fir`](crate::Fir): exact accumulation for fixed point, one
+//! rounding step, saturation (counted in the returned value), float in ascending kernel index.
+
+use crate::kernel::{dot, dot_reversed};
+use crate::num::{MulAcc, Rounding, Sample};
+use crate::Error;
+
+/// Which part of the full result to produce.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Span {
+    /// Every output where the operands overlap at all: L + K − 1 values.
+    Full,
+    /// The central max(L, K) values of the full result.
+    Same,
+    /// Only outputs where the shorter operand overlaps the longer one completely.
+    Valid,
+}
+
+impl Span {
+    /// The output length for operands of lengths `l` and `k` (both ≥ 1), and the index in the
+    /// full result of the first output.
+    #[must_use]
+    pub const fn layout(self, l: usize, k: usize) -> (usize, usize) {
+        let (short, long) = if l < k { (l, k) } else { (k, l) };
+        match self {
+            Span::Full => (l + k - 1, 0),
+            Span::Same => (long, (short - 1) / 2),
+            Span::Valid => (long - short + 1, short - 1),
+        }
+    }
+}
+
+/// Checks the operands and the output length; returns the index of the first full output.
+fn check<S, T>(signal: &[S], kernel: &[T], out: &[S], span: Span) -> Result<usize, Error> {
+    if signal.is_empty() || kernel.is_empty() {
+        return Err(Error::EmptyInput);
+    }
+    let (len, first) = span.layout(signal.len(), kernel.len());
+    if out.len() != len {
+        return Err(Error::OutputLength {
+            expected: len,
+            found: out.len(),
+        });
+    }
+    Ok(first)
+}
+
+/// Writes the requested span of `full[n] = Σ_k kernel[k] · signal[n − k]` into `out` and
+/// returns how many outputs saturated.
+///
+/// **Accumulator / rounding / saturation:** as [`MulAcc`] for `S` and `T`: exact sums for fixed
+/// point, then one `rounding` step and a clamp to the range of `S`. **Float:** ascending kernel
+/// index, no FMA; `rounding` is ignored.
+///
+/// # Errors
+/// * [`Error::EmptyInput`] if either operand is empty;
+/// * [`Error::OutputLength`] if `out` is not the length the span produces;
+/// * [`Error::AccumulatorOverflow`] if `kernel` could overflow the accumulator for some signal
+///   in the full range of `S`.
+///
+/// ```
+/// use tapline::{convolve, Rounding, Span};
+/// let mut out = [0.0f64; 4];
+/// convolve(&[1.0, 2.0, 3.0], &[0.0, 1.0], &mut out, Span::Full, Rounding::HalfUp)?;
+/// assert_eq!(out, [0.0, 1.0, 2.0, 3.0]);
+///
+/// // Q15: (-1.0) * (-1.0) = +1.0 does not fit and saturates to 1 − 2^-15.
+/// let mut q = [0i16; 1];
+/// let saturated = convolve(&[i16::MIN], &[i16::MIN], &mut q, Span::Full, Rounding::HalfUp)?;
+/// assert_eq!((q[0], saturated), (i16::MAX, 1));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+pub fn convolve<S: MulAcc<T>, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+    rounding: Rounding,
+) -> Result<usize, Error> {
+    let first = check(signal, kernel, out, span)?;
+    if !S::accumulator_fits(kernel) {
+        return Err(Error::AccumulatorOverflow);
+    }
+    let (l, k) = (signal.len(), kernel.len());
+    let mut saturated = 0;
+    for (n, y) in (first..).zip(out.iter_mut()) {
+        // Kernel indices that meet a signal sample: max(0, n−L+1) ..= min(n, K−1).
+        let k_lo = (n + 1).saturating_sub(l);
+        let k_hi = n.min(k - 1);
+        let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
+        let xs = signal.get(n - k_hi..=n - k_lo).unwrap_or(&[]);
+        let (v, sat) = S::finish(dot_reversed(S::ACC_ZERO, taps, xs), rounding);
+        *y = v;
+        saturated += usize::from(sat);
+    }
+    Ok(saturated)
+}
+
+/// Writes the requested span of the cross-correlation
+/// `full[n] = Σ_k kernel[k] · signal[n + k − (K − 1)]` into `out` (the convolution of `signal`
+/// with `kernel` reversed, as `numpy.correlate` defines it for real data) and returns how many
+/// outputs saturated. With [`Span::Valid`] and K ≤ L this is Σ_k kernel\[k\]·signal\[i + k\]:
+/// sliding the kernel along the signal, e.g. to find a known pulse shape.
+///
+/// Numeric behaviour and errors as [`convolve`].
+///
+/// ```
+/// use tapline::{correlate, Rounding, Span};
+/// let mut out = [0i32; 3];
+/// // Find the pulse [1, 2] (Q31 ½ and 1−2^-31… kept small here) in a signal: peak at index 1.
+/// let pulse = [1 << 29, 1 << 30];
+/// correlate(&[0, 1 << 20, 2 << 20, 0], &pulse, &mut out, Span::Valid, Rounding::HalfUp)?;
+/// assert!(out[1] > out[0] && out[1] > out[2]);
+/// # Ok::<(), tapline::Error>(())
+/// ```
+pub fn correlate<S: MulAcc<T>, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+    rounding: Rounding,
+) -> Result<usize, Error> {
+    let first = check(signal, kernel, out, span)?;
+    if !S::accumulator_fits(kernel) {
+        return Err(Error::AccumulatorOverflow);
+    }
+    let (l, k) = (signal.len(), kernel.len());
+    let mut saturated = 0;
+    for (n, y) in (first..).zip(out.iter_mut()) {
+        // Kernel indices with a signal sample: max(0, K−1−n) ..= min(K−1, L+K−2−n).
+        let k_lo = (k - 1).saturating_sub(n);
+        let k_hi = (k - 1).min(l + k - 2 - n);
+        let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
+        let start = n + k_lo + 1 - k;
+        let xs = signal.get(start..).unwrap_or(&[]);
+        let (v, sat) = S::finish(dot(S::ACC_ZERO, taps, xs), rounding);
+        *y = v;
+        saturated += usize::from(sat);
+    }
+    Ok(saturated)
+}

@@ -1,0 +1,48 @@
+//! The one error type of the crate: configuration mistakes, reported once, at the call that
+//! makes them.
+
+use core::fmt;
+
+/// A configuration mistake: a buffer of the wrong length, an empty input, or a tap set whose
+/// accumulator could overflow.
+///
+/// The streaming paths ([`Fir::push`](crate::Fir::push)) never return errors; block calls check
+/// their buffer lengths once per call.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum Error {
+    /// An output buffer does not have the length the operation produces.
+    OutputLength {
+        /// The length the operation needs.
+        expected: usize,
+        /// The length that was passed.
+        found: usize,
+    },
+    /// A convolution or correlation operand is empty; both need at least one element.
+    EmptyInput,
+    /// Some input sequence in the sample type's full range could drive the accumulator past its
+    /// width with these taps. Use fewer or smaller taps (Σ|h| bounds the growth), or a wider
+    /// sample/accumulator type.
+    AccumulatorOverflow,
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match *self {
+            Error::OutputLength { expected, found } => write!(
+                f,
+                "output buffer has {found} elements but the operation produces {expected}"
+            ),
+            Error::EmptyInput => f.write_str(
+                "convolution input is empty: both the signal and the kernel need at least one element",
+            ),
+            Error::AccumulatorOverflow => f.write_str(
+                "these taps can overflow the accumulator for some full-scale input: \
+                 reduce the sum of |taps| or use a wider format",
+            ),
+        }
+    }
+}
+
+impl core::error::Error for Error {}

@@ -1,0 +1,227 @@
+//! The direct-form FIR filter: y\[n\] = Σ_{k<N} h\[k\]·x\[n−k\].
+
+use super::GroupDelay;
+use crate::kernel::dot_reversed;
+use crate::num::{MulAcc, Rounding, Sample};
+use crate::{Error, Ring};
+
+/// A streaming FIR filter with `N` taps over samples of type `S` and taps of type `T`
+/// (by default the same type).
+///
+/// The taps are borrowed (`&'a [T; N]`), so a table in flash (`static`/`const`) costs no RAM.
+/// The filter's own RAM is `N` samples of history, one index, the rounding mode and a
+/// saturation counter (`size_of::<Fir<i16, 32>>()` is 80 bytes on a 32-bit target: 64 of history, 16 of bookkeeping).
+///
+/// * **Accumulator:** [`MulAcc::Acc`] of the sample type — `i64` for Q15 and Q31, exact.
+///   [`new`](Fir::new) rejects taps that could overflow it for any input.
+/// * **Rounding:** one step from accumulator to output, [`Rounding::HalfUp`] unless set with
+///   [`with_rounding`](Fir::with_rounding).
+/// * **Saturation:** outputs beyond the sample type's range clamp to its limits (never wrap) and
+///   increment [`saturations`](Fir::saturations).
+/// * **Group delay:** (N−1)/2 samples when the taps are symmetric or antisymmetric
+///   ([`group_delay`](Fir::group_delay)).
+/// * **Start-up:** the history starts at zero, so the first N−1 outputs are the response to a
+///   signal that was zero before it.
+///
+/// Per-sample ([`push`](Fir::push)) and block ([`process`](Fir::process),
+/// [`process_in_place`](Fir::process_in_place)) calls give bit-identical outputs for any way of
+/// cutting the input into blocks.
+///
+/// ```
+/// use tapline::{Fir, Rounding};
+///
+/// // Q15 taps in flash: a 3-tap smoother [0.25, 0.5, 0.25].
+/// static SMOOTH: [i16; 3] = [8192, 16384, 8192];
+/// let mut fir = Fir::<i16, 3>::new(&SMOOTH)?.with_rounding(Rounding::HalfEven);
+///
+/// // From an ADC interrupt, one sample at a time:
+/// let y = fir.push(1000);
+/// assert_eq!(y, 250);
+///
+/// // From a DMA half-buffer, in place:
+/// let mut block = [1000i16; 4];
+/// fir.process_in_place(&mut block);
+/// assert_eq!(block, [750, 1000, 1000, 1000]);
+///
+/// // Full-scale edge: -1.0 steps saturate nowhere because Σ|h| = 1.
+/// let mut edge = [i16::MIN; 3];
+/// fir.process_in_place(&mut edge);
+/// assert_eq!(edge[2], i16::MIN);
+/// assert_eq!(fir.saturations(), 0);
+/// assert_eq!(fir.group_delay().map(|d| d.samples()), Some(1.0));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+#[derive(Clone, Debug)]
+pub struct Fir<'a, S: MulAcc<T>, const N: usize, T: Sample = S> {
+    taps: &'a [T; N],
+    history: Ring<S, N>,
+    rounding: Rounding,
+    saturations: u32,
+}
+
+impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
+    /// A filter with impulse response `taps` (h\[0\] multiplies the newest sample), zero
+    /// history, [`Rounding::HalfUp`] and a zero saturation counter.
+    ///
+    /// `N = 0` does not compile.
+    ///
+    /// # Errors
+    /// [`Error::AccumulatorOverflow`] when some input in the full range of `S` could overflow
+    /// the accumulator with these taps ([`MulAcc::accumulator_fits`]); possible for Q31 taps
+    /// with Σ|h| near 2 or more, never for Q15 taps of any length that fits in memory.
+    ///
+    /// ```
+    /// use tapline::{Error, Fir};
+    /// static TOO_LOUD: [i32; 3] = [i32::MIN; 3]; // Σ|h| = 3 in Q31
+    /// assert_eq!(Fir::<i32, 3>::new(&TOO_LOUD).unwrap_err(), Error::AccumulatorOverflow);
+    /// ```
+    pub fn new(taps: &'a [T; N]) -> Result<Self, Error> {
+        if !S::accumulator_fits(taps) {
+            return Err(Error::AccumulatorOverflow);
+        }
+        Ok(Fir {
+            taps,
+            history: Ring::new(S::ZERO),
+            rounding: Rounding::default(),
+            saturations: 0,
+        })
+    }
+
+    /// The same filter with another rounding mode for its output step.
+    #[must_use]
+    pub fn with_rounding(mut self, rounding: Rounding) -> Self {
+        self.rounding = rounding;
+        self
+    }
+
+    /// The rounding mode of the output step.
+    #[must_use]
+    pub fn rounding(&self) -> Rounding {
+        self.rounding
+    }
+
+    /// Filters one sample: pushes `x` into the history and returns y\[n\].
+    ///
+    /// Cost: N multiply-accumulates and one output step; no branches that depend on the data,
+    /// no division, no panic. Saturation of the output is counted.
+    ///
+    /// ```
+    /// use tapline::Fir;
+    /// static GAIN_2: [i16; 2] = [i16::MAX, i16::MAX]; // Σh ≈ 2
+    /// let mut fir = Fir::<i16, 2>::new(&GAIN_2)?;
+    /// fir.push(20000);
+    /// assert_eq!(fir.push(20000), i16::MAX); // 39999 saturates, it does not wrap
+    /// assert_eq!(fir.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[inline]
+    pub fn push(&mut self, x: S) -> S {
+        self.history.push(x);
+        let (y, saturated) = S::finish(self.accumulate(), self.rounding);
+        self.saturations = self.saturations.saturating_add(u32::from(saturated));
+        y
+    }
+
+    /// The exact (fixed point) or float accumulator for the current history, before rounding.
+    #[inline]
+    fn accumulate(&self) -> S::Acc {
+        let (older, newer) = self.history.as_slices();
+        // The newest sample meets h[0]: taps[..newer.len()] pair with `newer`, the rest with
+        // `older`; both slices are read newest-first by the kernel.
+        let (near, far) = self
+            .taps
+            .split_at_checked(newer.len())
+            .unwrap_or((self.taps.as_slice(), &[]));
+        let acc = dot_reversed(S::ACC_ZERO, near, newer);
+        dot_reversed(acc, far, older)
+    }
+
+    /// Filters `input` into `output`, sample by sample, exactly as repeated [`push`](Fir::push).
+    ///
+    /// # Errors
+    /// [`Error::OutputLength`] when `output.len() != input.len()`; nothing is processed then.
+    ///
+    /// ```
+    /// use tapline::{Error, Fir};
+    /// static TAPS: [f32; 2] = [0.5, 0.5];
+    /// let mut fir = Fir::<f32, 2>::new(&TAPS)?;
+    /// let mut out = [0.0; 3];
+    /// fir.process(&[2.0, 4.0, f32::NAN], &mut out)?;
+    /// assert_eq!(&out[..2], &[1.0, 3.0]);
+    /// assert!(out[2].is_nan()); // NaN propagates, it does not panic
+    /// assert_eq!(fir.process(&[1.0], &mut out), Err(Error::OutputLength { expected: 1, found: 3 }));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn process(&mut self, input: &[S], output: &mut [S]) -> Result<(), Error> {
+        if input.len() != output.len() {
+            return Err(Error::OutputLength {
+                expected: input.len(),
+                found: output.len(),
+            });
+        }
+        for (&x, y) in input.iter().zip(output) {
+            *y = self.push(x);
+        }
+        Ok(())
+    }
+
+    /// Filters `buffer` in place (e.g. a DMA half-buffer), exactly as repeated
+    /// [`push`](Fir::push).
+    pub fn process_in_place(&mut self, buffer: &mut [S]) {
+        for v in buffer {
+            *v = self.push(*v);
+        }
+    }
+
+    /// Returns to the state [`new`](Fir::new) made: zero history, zero saturation count. Taps
+    /// and rounding mode stay.
+    pub fn reset(&mut self) {
+        self.history.fill(S::ZERO);
+        self.saturations = 0;
+    }
+
+    /// The taps, which are the impulse response: feeding a unit impulse gives h\[0\], h\[1\], …
+    /// (in fixed point, scaled by the impulse's value and rounded to the sample format).
+    #[must_use]
+    pub fn taps(&self) -> &'a [T; N] {
+        self.taps
+    }
+
+    /// Replaces the taps (same length `N`) without touching the history, so the output moves to
+    /// the new response without a start-up transient.
+    ///
+    /// # Errors
+    /// [`Error::AccumulatorOverflow`] as in [`new`](Fir::new); the old taps then stay.
+    pub fn set_taps(&mut self, taps: &'a [T; N]) -> Result<(), Error> {
+        if !S::accumulator_fits(taps) {
+            return Err(Error::AccumulatorOverflow);
+        }
+        self.taps = taps;
+        Ok(())
+    }
+
+    /// The history: the last `N` input samples, oldest first.
+    #[must_use]
+    pub fn history(&self) -> &Ring<S, N> {
+        &self.history
+    }
+
+    /// How many outputs have saturated since construction, [`reset`](Fir::reset) or
+    /// [`clear_saturations`](Fir::clear_saturations). Stops at `u32::MAX`.
+    #[must_use]
+    pub fn saturations(&self) -> u32 {
+        self.saturations
+    }
+
+    /// Sets the saturation counter to zero and returns what it held.
+    pub fn clear_saturations(&mut self) -> u32 {
+        core::mem::take(&mut self.saturations)
+    }
+
+    /// The constant group delay when the taps are symmetric or antisymmetric, (N−1)/2 samples;
+    /// `None` otherwise.
+    #[must_use]
+    pub fn group_delay(&self) -> Option<GroupDelay> {
+        GroupDelay::of(self.taps)
+    }
+}

@@ -1,0 +1,12 @@
+//! Kernels: the dot products every filter and convolution is built from.
+//!
+//! Each kernel works on contiguous slices and stops at the shorter one, so its loop has no
+//! modulo and no bounds checks. Accumulation order is fixed (ascending tap index), which is what
+//! makes float results reproducible and block processing bit-identical to per-sample processing.
+//!
+//! [`portable`] holds the reference kernels, written for every target. Faster target-specific
+//! kernels, when added, sit beside it with the same names and are tested bit-identical to it.
+
+pub mod portable;
+
+pub use portable::{dot, dot_reversed};

@@ -1,0 +1,45 @@
+//! Portable kernels: plain iterator loops that compile to tight code on every target.
+
+use crate::num::{MulAcc, Sample};
+
+/// `acc + Σ taps[i] · xs[i]` over `i < min(taps.len(), xs.len())`, in ascending `i`.
+///
+/// **Rounding / saturation:** none here — products and sums are exact for fixed-point types
+/// whose taps pass [`MulAcc::accumulator_fits`]; floats round per operation. The caller
+/// finishes the accumulator once with [`MulAcc::finish`].
+///
+/// ```
+/// use tapline::kernel::dot;
+/// let acc = dot::<i16, i16>(0, &[i16::MIN, 16384], &[i16::MIN, -2]);
+/// assert_eq!(acc, (1 << 30) - 32768); // (-1)(-1) + 0.5·(-2 LSB), in Q30
+/// ```
+#[inline]
+#[must_use]
+pub fn dot<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
+    for (&h, &x) in taps.iter().zip(xs) {
+        acc = S::mul_acc(acc, h, x);
+    }
+    acc
+}
+
+/// `acc + Σ taps[i] · xs[xs.len() − 1 − i]` over `i < min(taps.len(), xs.len())`: taps
+/// forward against `xs` read backward from its last element. With `xs` a history ordered oldest→newest this is
+/// the convolution sum Σ h\[k\]·x\[n−k\].
+///
+/// Same numeric behaviour as [`dot`]; the taps are visited in ascending index.
+///
+/// ```
+/// use tapline::kernel::dot_reversed;
+/// // h = [1, 2, 3], history oldest→newest [10, 20, 30]: 1·30 + 2·20 + 3·10.
+/// assert_eq!(dot_reversed::<f64, f64>(0.0, &[1.0, 2.0, 3.0], &[10.0, 20.0, 30.0]), 100.0);
+/// ```
+#[inline]
+#[must_use]
+pub fn dot_reversed<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
+    let len = taps.len().min(xs.len());
+    let xs = xs.get(xs.len() - len..).unwrap_or(&[]);
+    for (&h, &x) in taps.iter().zip(xs.iter().rev()) {
+        acc = S::mul_acc(acc, h, x);
+    }
+    acc
+}
