@@ -21,6 +21,7 @@
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
 pub enum Rounding {
     /// Round to nearest, ties toward +∞ (add half an LSB, then floor). The default.
     #[default]
