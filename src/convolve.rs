@@ -12,9 +12,9 @@
 //! Numeric behaviour is that of [`Fir`](crate::Fir): exact accumulation for fixed point, one
 //! rounding step, saturation (counted in the returned value), float in ascending kernel index.
 
+use crate::Error;
 use crate::kernel::{dot, dot_reversed};
 use crate::num::{MulAcc, Rounding, Sample};
-use crate::Error;
 
 /// Which part of the full result to produce.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]

@@ -30,7 +30,11 @@ impl Symmetry {
     /// ```
     #[must_use]
     pub fn of<T: Sample>(taps: &[T]) -> Symmetry {
-        let pairs = || taps.iter().zip(taps.iter().rev()).map(|(a, b)| (a.to_f64(), b.to_f64()));
+        let pairs = || {
+            taps.iter()
+                .zip(taps.iter().rev())
+                .map(|(a, b)| (a.to_f64(), b.to_f64()))
+        };
         if pairs().all(|(a, b)| a == b) {
             Symmetry::Symmetric
         } else if pairs().all(|(a, b)| a == -b) {
