@@ -59,6 +59,11 @@
     )
 )]
 
+// The README's examples run as doctests, so the README cannot drift from the API.
+#[cfg(doctest)]
+#[doc = include_str!("../README.md")]
+struct ReadmeExamples;
+
 pub mod convolve;
 mod error;
 pub mod filter;
