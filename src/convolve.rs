@@ -6,8 +6,11 @@
 //! | [`Span`] | output length | output\[i\] is full\[…\] |
 //! |---|---|---|
 //! | `Full` | L + K − 1 | i |
-//! | `Same` | max(L, K) | i + (min(L, K) − 1)/2 |
+//! | `Same` | max(L, K) | i + ⌊(min(L, K) − 1)/2⌋; for a correlation with K > L: i + ⌊L/2⌋ |
 //! | `Valid` | max(L, K) − min(L, K) + 1 | i + min(L, K) − 1 |
+//!
+//! (The `Same` exception mirrors numpy, which correlates a longer kernel by swapping the
+//! operands and reversing the result, so the centred window is mirrored too.)
 //!
 //! Numeric behaviour is that of [`Fir`](crate::Fir): exact accumulation for fixed point, one
 //! rounding step, saturation (counted in the returned value), float in ascending kernel index.
@@ -29,8 +32,14 @@ pub enum Span {
 }
 
 impl Span {
-    /// The output length for operands of lengths `l` and `k` (both ≥ 1), and the index in the
-    /// full result of the first output.
+    /// For [`convolve`] of a signal of length `l` with a kernel of length `k` (both ≥ 1): the
+    /// output length and the index in the full result of the first output.
+    ///
+    /// ```
+    /// use tapline::Span;
+    /// assert_eq!(Span::Same.layout(5, 4), (5, 1));
+    /// assert_eq!(Span::Valid.layout(3, 5), (3, 2));
+    /// ```
     #[must_use]
     pub const fn layout(self, l: usize, k: usize) -> (usize, usize) {
         let (short, long) = if l < k { (l, k) } else { (k, l) };
@@ -40,14 +49,37 @@ impl Span {
             Span::Valid => (long - short + 1, short - 1),
         }
     }
+
+    /// For [`correlate`]: as [`layout`](Span::layout), except that `Same` with a kernel longer
+    /// than the signal starts at ⌊l/2⌋ (numpy's mirrored window).
+    ///
+    /// ```
+    /// use tapline::Span;
+    /// assert_eq!(Span::Same.correlation_layout(4, 6), (6, 2));
+    /// assert_eq!(Span::Same.correlation_layout(6, 4), Span::Same.layout(6, 4));
+    /// ```
+    #[must_use]
+    pub const fn correlation_layout(self, l: usize, k: usize) -> (usize, usize) {
+        match self {
+            Span::Same if k > l => (k, l / 2),
+            _ => self.layout(l, k),
+        }
+    }
 }
 
-/// Checks the operands and the output length; returns the index of the first full output.
-fn check<S, T>(signal: &[S], kernel: &[T], out: &[S], span: Span) -> Result<usize, Error> {
+/// Checks the operands and the output length against `layout`; returns the index of the first
+/// full output.
+fn check<S, T>(
+    signal: &[S],
+    kernel: &[T],
+    out: &[S],
+    layout: fn(Span, usize, usize) -> (usize, usize),
+    span: Span,
+) -> Result<usize, Error> {
     if signal.is_empty() || kernel.is_empty() {
         return Err(Error::EmptyInput);
     }
-    let (len, first) = span.layout(signal.len(), kernel.len());
+    let (len, first) = layout(span, signal.len(), kernel.len());
     if out.len() != len {
         return Err(Error::OutputLength {
             expected: len,
@@ -89,7 +121,7 @@ pub fn convolve<S: MulAcc<T>, T: Sample>(
     span: Span,
     rounding: Rounding,
 ) -> Result<usize, Error> {
-    let first = check(signal, kernel, out, span)?;
+    let first = check(signal, kernel, out, Span::layout, span)?;
     if !S::accumulator_fits(kernel) {
         return Err(Error::AccumulatorOverflow);
     }
@@ -132,7 +164,7 @@ pub fn correlate<S: MulAcc<T>, T: Sample>(
     span: Span,
     rounding: Rounding,
 ) -> Result<usize, Error> {
-    let first = check(signal, kernel, out, span)?;
+    let first = check(signal, kernel, out, Span::correlation_layout, span)?;
     if !S::accumulator_fits(kernel) {
         return Err(Error::AccumulatorOverflow);
     }

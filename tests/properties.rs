@@ -388,6 +388,7 @@ proptest! {
             convolve(&hs, &xs, &mut swapped, span, mode).unwrap();
             prop_assert_eq!(&swapped, &out);
 
+            let (len, first) = span.correlation_layout(x.len(), h.len());
             let mut corr = vec![0i16; len];
             correlate(&xs, &hs, &mut corr, span, mode).unwrap();
             let model: Vec<i128> = full_corr[first..first + len].iter().map(|&a| finish_exact(a, 15, 16, mode).0).collect();

@@ -38,8 +38,10 @@ pub fn dot<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S:
 pub fn dot_reversed<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
     let len = taps.len().min(xs.len());
     let xs = xs.get(xs.len() - len..).unwrap_or(&[]);
-    for (&h, &x) in taps.iter().zip(xs.iter().rev()) {
-        acc = S::mul_acc(acc, h, x);
+    let taps = taps.get(..len).unwrap_or(&[]);
+    #[allow(clippy::indexing_slicing)]
+    for i in 0..len {
+        acc = S::mul_acc(acc, taps[i], xs[len - 1 - i]);
     }
     acc
 }
