@@ -87,7 +87,9 @@ fn main() -> Result<(), tapline::Error> {
         .map(|(n, &c)| {
             let t = n as f64 / SAMPLE_RATE_HZ;
             let hum = 35.0 * (2.0 * std::f64::consts::PI * 50.0 * t + 0.3).sin();
-            (c + hum + 6.0 * noise.gaussian()).round().clamp(0.0, 4095.0) as u16
+            (c + hum + 6.0 * noise.gaussian())
+                .round()
+                .clamp(0.0, 4095.0) as u16
         })
         .collect();
     let input: Vec<i16> = codes.iter().map(|&c| code_to_q15(c)).collect();
@@ -103,7 +105,9 @@ fn main() -> Result<(), tapline::Error> {
     let mut reference = Fir::<f64, TAPS>::new(&SMOOTHING_F64)?;
     let ideal: Vec<f64> = input.iter().map(|&x| reference.push(x.to_f64())).collect();
 
-    let delay = fir.group_delay().map_or(f64::NAN, |d| f64::from(d.samples()));
+    let delay = fir
+        .group_delay()
+        .map_or(f64::NAN, |d| f64::from(d.samples()));
     // One Q15 LSB is 2^-15; one ADC code is 16 Q15 LSB (left-aligned 12 bits).
     let lsb = 1.0 / 32768.0;
     let max_dev_lsb = output
@@ -128,13 +132,24 @@ fn main() -> Result<(), tapline::Error> {
     let rms_out = rms(plateau.map(|n| to_codes(output[n]) - clean[n]));
 
     println!("tapline demo: silo scale load cell (invented scenario and data)");
-    println!("  12-bit ADC at {SAMPLE_RATE_HZ} Hz, 50 Hz hum 35 codes peak, white noise 6 codes rms");
-    println!("  filter: {TAPS}-tap moving average, Q15 taps summing to {}", SMOOTHING_Q15.iter().map(|&t| i32::from(t)).sum::<i32>());
+    println!(
+        "  12-bit ADC at {SAMPLE_RATE_HZ} Hz, 50 Hz hum 35 codes peak, white noise 6 codes rms"
+    );
+    println!(
+        "  filter: {TAPS}-tap moving average, Q15 taps summing to {}",
+        SMOOTHING_Q15.iter().map(|&t| i32::from(t)).sum::<i32>()
+    );
     println!("  samples filtered:         {samples} (in 64-sample blocks)");
     println!("  noise + hum, input:       {rms_in:.2} codes rms");
     println!("  noise + hum, output:      {rms_out:.2} codes rms");
-    println!("  noise reduction:          {:.1} dB", 20.0 * (rms_in / rms_out).log10());
-    println!("  group delay:              {delay} samples = {:.1} ms", delay / SAMPLE_RATE_HZ * 1000.0);
+    println!(
+        "  noise reduction:          {:.1} dB",
+        20.0 * (rms_in / rms_out).log10()
+    );
+    println!(
+        "  group delay:              {delay} samples = {:.1} ms",
+        delay / SAMPLE_RATE_HZ * 1000.0
+    );
     println!("  saturated outputs:        {}", fir.saturations());
     println!("  max |Q15 - float64|:      {max_dev_lsb:.2} LSB (Q15)");
     println!("  bound from tap quantization + rounding: {bound_lsb:.2} LSB");
