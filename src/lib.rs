@@ -17,7 +17,7 @@
 //!   and the generic `fixed` formats, raw `i16`/`i32`, `f32`, `f64`.
 //! * [`kernel`] — dot products over contiguous slices.
 //! * [`filter`] — streaming filters ([`Fir`]), per sample or per block.
-//! * [`convolve`] — finite convolution and cross-correlation of two slices.
+//! * [`mod@convolve`] — finite convolution and cross-correlation of two slices.
 //!
 //! ## Numeric contract
 //!
