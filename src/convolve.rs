@@ -17,7 +17,7 @@
 
 use crate::Error;
 use crate::kernel::{dot, dot_reversed};
-use crate::num::{MulAcc, Rounding, Sample};
+use crate::num::{DefaultAcc, MulAcc, Rounding, Sample};
 
 /// Which part of the full result to produce.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -133,7 +133,10 @@ pub fn convolve<S: MulAcc<T>, T: Sample>(
         let k_hi = n.min(k - 1);
         let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
         let xs = signal.get(n - k_hi..=n - k_lo).unwrap_or(&[]);
-        let (v, sat) = S::finish(dot_reversed(S::ACC_ZERO, taps, xs), rounding);
+        let (v, sat) = S::finish(
+            dot_reversed::<S, T, DefaultAcc>(S::ACC_ZERO, taps, xs),
+            rounding,
+        );
         *y = v;
         saturated += usize::from(sat);
     }
@@ -177,7 +180,7 @@ pub fn correlate<S: MulAcc<T>, T: Sample>(
         let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
         let start = n + k_lo + 1 - k;
         let xs = signal.get(start..).unwrap_or(&[]);
-        let (v, sat) = S::finish(dot(S::ACC_ZERO, taps, xs), rounding);
+        let (v, sat) = S::finish(dot::<S, T, DefaultAcc>(S::ACC_ZERO, taps, xs), rounding);
         *y = v;
         saturated += usize::from(sat);
     }

@@ -25,6 +25,16 @@ pub enum Error {
     /// width with these taps. Use fewer or smaller taps (Σ|h| bounds the growth), or a wider
     /// sample/accumulator type.
     AccumulatorOverflow,
+    /// An input range is empty (min > max) or an ADC description is impossible (0 bits, more
+    /// bits than the sample word, or a word wider than 32 bits).
+    InvalidRange,
+    /// Two tap tables that must describe the same filter (ideal and quantized) differ in length.
+    TapCountMismatch {
+        /// Length of the ideal (float) taps.
+        ideal: usize,
+        /// Length of the quantized taps.
+        quantized: usize,
+    },
 }
 
 impl fmt::Display for Error {
@@ -40,6 +50,15 @@ impl fmt::Display for Error {
             Error::AccumulatorOverflow => f.write_str(
                 "these taps can overflow the accumulator for some full-scale input: \
                  reduce the sum of |taps| or use a wider format",
+            ),
+            Error::InvalidRange => f.write_str(
+                "invalid input range: min must not exceed max, and an ADC needs 1 to 32 bits \
+                 within a sample word of at most 32 bits",
+            ),
+            Error::TapCountMismatch { ideal, quantized } => write!(
+                f,
+                "the ideal taps have {ideal} entries but the quantized taps {quantized}: \
+                 they must describe the same filter"
             ),
         }
     }

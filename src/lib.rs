@@ -67,6 +67,7 @@ struct ReadmeExamples;
 pub mod convolve;
 mod error;
 pub mod filter;
+pub mod headroom;
 pub mod kernel;
 pub mod num;
 pub mod ring;

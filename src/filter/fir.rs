@@ -2,11 +2,12 @@
 
 use super::GroupDelay;
 use crate::kernel::dot_reversed;
-use crate::num::{MulAcc, Rounding, Sample};
+use crate::num::{DefaultAcc, MulAcc, Rounding, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 
-/// A streaming FIR filter with `N` taps over samples of type `S` and taps of type `T`
-/// (by default the same type).
+/// A streaming FIR filter with `N` taps over samples of type `S`, taps of type `T` (by default
+/// the same type) and the accumulator selected by `W` (by default [`DefaultAcc`]; see the
+/// [`num`](crate::num) table).
 ///
 /// The taps are borrowed (`&'a [T; N]`), so a table in flash (`static`/`const`) costs no RAM.
 /// The filter's own RAM is `N` samples of history, one index, the rounding mode and a
@@ -52,23 +53,27 @@ use crate::{Error, Ring};
 /// # Ok::<(), tapline::Error>(())
 /// ```
 #[derive(Clone, Debug)]
-pub struct Fir<'a, S: MulAcc<T>, const N: usize, T: Sample = S> {
+pub struct Fir<'a, S: MulAcc<T, W>, const N: usize, T: Sample = S, W = DefaultAcc> {
     taps: &'a [T; N],
     history: Ring<S, N>,
     rounding: Rounding,
     saturations: u32,
+    width: core::marker::PhantomData<W>,
 }
 
 impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
-    /// A filter with impulse response `taps` (h\[0\] multiplies the newest sample), zero
-    /// history, [`Rounding::HalfUp`] and a zero saturation counter.
+    /// A filter with impulse response `taps` (h\[0\] multiplies the newest sample), the
+    /// sample type's default accumulator, zero history, [`Rounding::HalfUp`] and a zero
+    /// saturation counter.
     ///
     /// `N = 0` does not compile.
     ///
     /// # Errors
     /// [`Error::AccumulatorOverflow`] when some input in the full range of `S` could overflow
     /// the accumulator with these taps ([`MulAcc::accumulator_fits`]); possible for Q31 taps
-    /// with Σ|h| near 2 or more, never for Q15 taps of any length that fits in memory.
+    /// with Σ|h| near 2 or more (use [`with_accumulator`](Fir::with_accumulator) and
+    /// [`Acc128`](crate::num::Acc128) for those), never for Q15 taps of any length that fits in
+    /// memory.
     ///
     /// ```
     /// use tapline::{Error, Fir};
@@ -76,15 +81,56 @@ impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
     /// assert_eq!(Fir::<i32, 3>::new(&TOO_LOUD).unwrap_err(), Error::AccumulatorOverflow);
     /// ```
     pub fn new(taps: &'a [T; N]) -> Result<Self, Error> {
+        Self::with_accumulator(taps)
+    }
+}
+
+impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W: RuntimeChecked> Fir<'a, S, N, T, W> {
+    /// As [`new`](Fir::new), with the accumulator named by the type's `W` parameter
+    /// ([`DefaultAcc`] or [`Acc128`](crate::num::Acc128)).
+    ///
+    /// # Errors
+    /// [`Error::AccumulatorOverflow`] as in [`new`](Fir::new).
+    ///
+    /// ```
+    /// use tapline::{Fir, num::Acc128};
+    /// static GAIN_3: [i32; 3] = [i32::MIN; 3];
+    /// let mut fir = Fir::<i32, 3, i32, Acc128>::with_accumulator(&GAIN_3)?;
+    /// assert_eq!(fir.push(1 << 28), -(1 << 28));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
         if !S::accumulator_fits(taps) {
             return Err(Error::AccumulatorOverflow);
         }
-        Ok(Fir {
+        Ok(Self::with_checked_taps(taps))
+    }
+
+    /// Replaces the taps (same length `N`) without touching the history, so the output moves to
+    /// the new response without a start-up transient.
+    ///
+    /// # Errors
+    /// [`Error::AccumulatorOverflow`] as in [`new`](Fir::new); the old taps then stay.
+    pub fn set_taps(&mut self, taps: &'a [T; N]) -> Result<(), Error> {
+        if !S::accumulator_fits(taps) {
+            return Err(Error::AccumulatorOverflow);
+        }
+        self.taps = taps;
+        Ok(())
+    }
+}
+
+impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W> Fir<'a, S, N, T, W> {
+    /// The filter for taps whose accumulator safety has been established by the caller
+    /// (`new`'s run-time check or a compile-time proof).
+    pub(crate) const fn with_checked_taps(taps: &'a [T; N]) -> Self {
+        Fir {
             taps,
             history: Ring::new(S::ZERO),
-            rounding: Rounding::default(),
+            rounding: Rounding::HalfUp,
             saturations: 0,
-        })
+            width: core::marker::PhantomData,
+        }
     }
 
     /// The same filter with another rounding mode for its output step.
@@ -116,9 +162,20 @@ impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
     /// ```
     #[inline]
     pub fn push(&mut self, x: S) -> S {
+        self.push_with(x, |_| {})
+    }
+
+    /// [`push`](Fir::push), handing the accumulator to `inspect` before the output step.
+    #[inline(always)]
+    pub(crate) fn push_with(&mut self, x: S, inspect: impl FnOnce(S::Acc)) -> S {
+        let (x, clamped) = S::admit(x);
         self.history.push(x);
-        let (y, saturated) = S::finish(self.accumulate(), self.rounding);
-        self.saturations = self.saturations.saturating_add(u32::from(saturated));
+        let acc = self.accumulate();
+        inspect(acc);
+        let (y, saturated) = S::finish(acc, self.rounding);
+        self.saturations = self
+            .saturations
+            .saturating_add(u32::from(saturated) + u32::from(clamped));
         y
     }
 
@@ -132,8 +189,8 @@ impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
             .taps
             .split_at_checked(newer.len())
             .unwrap_or((self.taps.as_slice(), &[]));
-        let acc = dot_reversed(S::ACC_ZERO, near, newer);
-        dot_reversed(acc, far, older)
+        let acc = dot_reversed::<S, T, W>(S::ACC_ZERO, near, newer);
+        dot_reversed::<S, T, W>(acc, far, older)
     }
 
     /// Filters `input` into `output`, sample by sample, exactly as repeated [`push`](Fir::push).
@@ -187,19 +244,6 @@ impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
         self.taps
     }
 
-    /// Replaces the taps (same length `N`) without touching the history, so the output moves to
-    /// the new response without a start-up transient.
-    ///
-    /// # Errors
-    /// [`Error::AccumulatorOverflow`] as in [`new`](Fir::new); the old taps then stay.
-    pub fn set_taps(&mut self, taps: &'a [T; N]) -> Result<(), Error> {
-        if !S::accumulator_fits(taps) {
-            return Err(Error::AccumulatorOverflow);
-        }
-        self.taps = taps;
-        Ok(())
-    }
-
     /// The history: the last `N` input samples, oldest first.
     #[must_use]
     pub fn history(&self) -> &Ring<S, N> {
@@ -207,7 +251,8 @@ impl<'a, S: MulAcc<T>, const N: usize, T: Sample> Fir<'a, S, N, T> {
     }
 
     /// How many outputs have saturated since construction, [`reset`](Fir::reset) or
-    /// [`clear_saturations`](Fir::clear_saturations). Stops at `u32::MAX`.
+    /// [`clear_saturations`](Fir::clear_saturations) — plus, for a proven 32-bit accumulator,
+    /// inputs clamped to the proven range ([`MulAcc::admit`]). Stops at `u32::MAX`.
     #[must_use]
     pub fn saturations(&self) -> u32 {
         self.saturations

@@ -2,6 +2,9 @@
 
 use crate::num::{MulAcc, Sample};
 
+// `W` (the accumulator width) cannot be inferred from `S::Acc`; callers name it, e.g.
+// `dot::<i16, i16, DefaultAcc>`.
+
 /// `acc + Σ taps[i] · xs[i]` over `i < min(taps.len(), xs.len())`, in ascending `i`.
 ///
 /// **Rounding / saturation:** none here — products and sums are exact for fixed-point types
@@ -9,13 +12,13 @@ use crate::num::{MulAcc, Sample};
 /// finishes the accumulator once with [`MulAcc::finish`].
 ///
 /// ```
-/// use tapline::kernel::dot;
-/// let acc = dot::<i16, i16>(0, &[i16::MIN, 16384], &[i16::MIN, -2]);
+/// use tapline::{kernel::dot, num::DefaultAcc};
+/// let acc = dot::<i16, i16, DefaultAcc>(0, &[i16::MIN, 16384], &[i16::MIN, -2]);
 /// assert_eq!(acc, (1 << 30) - 32768); // (-1)(-1) + 0.5·(-2 LSB), in Q30
 /// ```
 #[inline]
 #[must_use]
-pub fn dot<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
+pub fn dot<S: MulAcc<T, W>, T: Sample, W>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
     for (&h, &x) in taps.iter().zip(xs) {
         acc = S::mul_acc(acc, h, x);
     }
@@ -29,13 +32,17 @@ pub fn dot<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S:
 /// Same numeric behaviour as [`dot`]; the taps are visited in ascending index.
 ///
 /// ```
-/// use tapline::kernel::dot_reversed;
+/// use tapline::{kernel::dot_reversed, num::DefaultAcc};
 /// // h = [1, 2, 3], history oldest→newest [10, 20, 30]: 1·30 + 2·20 + 3·10.
-/// assert_eq!(dot_reversed::<f64, f64>(0.0, &[1.0, 2.0, 3.0], &[10.0, 20.0, 30.0]), 100.0);
+/// assert_eq!(dot_reversed::<f64, f64, DefaultAcc>(0.0, &[1.0, 2.0, 3.0], &[10.0, 20.0, 30.0]), 100.0);
 /// ```
 #[inline]
 #[must_use]
-pub fn dot_reversed<S: MulAcc<T>, T: Sample>(mut acc: S::Acc, taps: &[T], xs: &[S]) -> S::Acc {
+pub fn dot_reversed<S: MulAcc<T, W>, T: Sample, W>(
+    mut acc: S::Acc,
+    taps: &[T],
+    xs: &[S],
+) -> S::Acc {
     let len = taps.len().min(xs.len());
     let xs = xs.get(xs.len() - len..).unwrap_or(&[]);
     let taps = taps.get(..len).unwrap_or(&[]);

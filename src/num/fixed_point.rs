@@ -1,49 +1,65 @@
 //! Fixed-point samples: raw `i16`/`i32` (Q15/Q31) and the `fixed` crate's `FixedI16<F>` /
-//! `FixedI32<F>`. The arithmetic is written once, generically over [`FixedRaw`]; a macro only
-//! stamps out the four `MulAcc` pairings.
+//! `FixedI32<F>`. The arithmetic is written once, generically over [`FixedPoint`]; macros only
+//! stamp out the pairings of sample, tap and accumulator types.
 
-use super::{MulAcc, Rounding, Sample, sealed::Sealed};
+use super::{Acc128, MulAcc, Rounding, Sample, sealed::Sealed};
 use fixed::types::extra::{LeEqU16, LeEqU32};
 use fixed::{FixedI16, FixedI32};
 
-/// Raw two's-complement view of a fixed-point type: `value = raw / 2^FRAC`.
-pub(crate) trait FixedRaw: Sample {
+/// A two's-complement fixed-point type: `value = raw / 2^FRAC`, `raw` a `BITS`-bit integer.
+///
+/// Implemented for `i16` (Q15: `FRAC` = 15), `i32` (Q31: 31), `FixedI16<F>` and `FixedI32<F>`.
+/// Sealed.
+///
+/// ```
+/// use tapline::num::FixedPoint;
+/// use fixed::types::I4F12;
+/// assert_eq!((<i16 as FixedPoint>::FRAC, <I4F12 as FixedPoint>::FRAC), (15, 12));
+/// assert_eq!(<i32 as FixedPoint>::RAW_MIN, -(1 << 31));
+/// assert_eq!(I4F12::from_num(-0.5).raw(), -2048);
+/// ```
+pub trait FixedPoint: Sample {
     /// Storage width in bits (16 or 32).
     const BITS: u32;
     /// Fractional bits.
     const FRAC: u32;
-    /// Smallest and largest raw value.
+    /// Smallest raw value, −2^(BITS−1).
     const RAW_MIN: i64 = -(1i64 << (Self::BITS - 1));
+    /// Largest raw value, 2^(BITS−1) − 1.
     const RAW_MAX: i64 = (1i64 << (Self::BITS - 1)) - 1;
     /// The raw bits, sign-extended.
     fn raw(self) -> i64;
-    /// From raw bits already known to lie in `RAW_MIN..=RAW_MAX` (others are truncated).
-    fn from_raw_in_range(raw: i64) -> Self;
+    /// From raw bits. **Overflow:** values outside `RAW_MIN..=RAW_MAX` saturate to the nearer
+    /// limit.
+    fn from_raw(raw: i64) -> Self;
 }
 
-macro_rules! fixed_raw {
+macro_rules! fixed_point {
     ($( [$($gen:tt)*] $ty:ty, $prim:ty, $frac:expr, $zero:expr, $get:expr, $make:expr; )*) => {$(
         impl<$($gen)*> Sealed for $ty {}
-        impl<$($gen)*> FixedRaw for $ty {
+        impl<$($gen)*> FixedPoint for $ty {
             const BITS: u32 = <$prim>::BITS;
             const FRAC: u32 = $frac;
             #[inline(always)]
             fn raw(self) -> i64 { i64::from($get(self)) }
             #[inline(always)]
-            fn from_raw_in_range(raw: i64) -> Self { $make(raw as $prim) }
+            fn from_raw(raw: i64) -> Self {
+                // In range after clamping, so the narrowing is lossless.
+                $make(raw.clamp(Self::RAW_MIN, Self::RAW_MAX) as $prim)
+            }
         }
         impl<$($gen)*> Sample for $ty {
             const ZERO: Self = $zero;
             #[inline]
             fn to_f64(self) -> f64 {
                 // Exact: |raw| < 2^53 and the divisor is a power of two.
-                self.raw() as f64 / (1u64 << <Self as FixedRaw>::FRAC) as f64
+                self.raw() as f64 / (1u64 << <Self as FixedPoint>::FRAC) as f64
             }
         }
     )*};
 }
 
-fixed_raw! {
+fixed_point! {
     [] i16, i16, 15, 0, |v: i16| v, |r: i16| r;
     [] i32, i32, 31, 0, |v: i32| v, |r: i32| r;
     [F: LeEqU16] FixedI16<F>, i16, FixedI16::<F>::FRAC_NBITS, FixedI16::<F>::ZERO,
@@ -64,6 +80,31 @@ pub(crate) fn sum_range(taps: impl Iterator<Item = i64>, x_min: i64, x_max: i64)
     })
 }
 
+/// The output step shared by every fixed-point accumulator: one rounding, then saturation.
+#[inline(always)]
+pub(crate) fn finish_fixed<S: FixedPoint>(
+    acc: i128,
+    tap_frac: u32,
+    rounding: Rounding,
+) -> (S, bool) {
+    let q = rounding.shift_wide(acc, tap_frac);
+    let clamped = q.clamp(i128::from(S::RAW_MIN), i128::from(S::RAW_MAX));
+    (S::from_raw(clamped as i64), clamped != q)
+}
+
+/// The same for an `i64` accumulator, kept apart so 32-bit cores never touch 128-bit values on
+/// the default path.
+#[inline(always)]
+pub(crate) fn finish_fixed_i64<S: FixedPoint>(
+    acc: i64,
+    tap_frac: u32,
+    rounding: Rounding,
+) -> (S, bool) {
+    let q = rounding.shift(acc, tap_frac);
+    let clamped = q.clamp(S::RAW_MIN, S::RAW_MAX);
+    (S::from_raw(clamped), clamped != q)
+}
+
 macro_rules! fixed_mul_acc {
     ($( [$($gen:tt)*] $s:ty => $t:ty; )*) => {$(
         impl<$($gen)*> MulAcc<$t> for $s {
@@ -78,9 +119,7 @@ macro_rules! fixed_mul_acc {
 
             #[inline(always)]
             fn finish(acc: i64, rounding: Rounding) -> (Self, bool) {
-                let q = rounding.shift(acc, <$t as FixedRaw>::FRAC);
-                let clamped = q.clamp(Self::RAW_MIN, Self::RAW_MAX);
-                (Self::from_raw_in_range(clamped), clamped != q)
+                finish_fixed_i64(acc, <$t as FixedPoint>::FRAC, rounding)
             }
 
             fn accumulator_fits(taps: &[$t]) -> bool {
@@ -95,5 +134,35 @@ fixed_mul_acc! {
     [] i16 => i16;
     [] i32 => i32;
     [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>;
+    [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>;
+}
+
+macro_rules! wide_mul_acc {
+    ($( [$($gen:tt)*] $s:ty => $t:ty; )*) => {$(
+        impl<$($gen)*> MulAcc<$t, Acc128> for $s {
+            type Acc = i128;
+            const ACC_ZERO: i128 = 0;
+
+            #[inline(always)]
+            fn mul_acc(acc: i128, tap: $t, x: Self) -> i128 {
+                // Exact: |Σ| ≤ N·2^62 < 2^127 for any N that fits in memory.
+                acc.wrapping_add(i128::from(tap.raw() * x.raw()))
+            }
+
+            #[inline(always)]
+            fn finish(acc: i128, rounding: Rounding) -> (Self, bool) {
+                finish_fixed(acc, <$t as FixedPoint>::FRAC, rounding)
+            }
+
+            fn accumulator_fits(taps: &[$t]) -> bool {
+                // 2^64 taps of magnitude 2^31 times inputs of 2^31 stay below 2^126.
+                (taps.len() as u128) < (1u128 << 64)
+            }
+        }
+    )*};
+}
+
+wide_mul_acc! {
+    [] i32 => i32;
     [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>;
 }

@@ -4,24 +4,32 @@
 //! type multiplies taps of type `T`, what it accumulates in, and how the accumulator returns to
 //! the sample type: one rounding step, then saturation.
 //!
-//! | sample `S` | taps `T` | accumulator | output step |
-//! |---|---|---|---|
-//! | `i16` (Q15) | `i16` (Q15) | `i64`, exact | `>> 15`, [`Rounding`], saturate to `i16` |
-//! | `FixedI16<Fs>` | `FixedI16<Ft>` | `i64`, exact | `>> Ft`, [`Rounding`], saturate |
-//! | `i32` (Q31) | `i32` (Q31) | `i64`, exact while Σ\|h\| < 2 | `>> 31`, [`Rounding`], saturate |
-//! | `FixedI32<Fs>` | `FixedI32<Ft>` | `i64`, exact while in range | `>> Ft`, [`Rounding`], saturate |
-//! | `f32` | `f32` | `f32` | none |
-//! | `f32` | `f64` | `f64` | nearest `f32` (ties to even) |
-//! | `f64` | `f64` | `f64` | none |
+//! The third parameter of `MulAcc<T, W>` picks the accumulator width `W` ([`DefaultAcc`] unless
+//! named):
+//!
+//! | sample `S` | taps `T` | `W` | accumulator | output step |
+//! |---|---|---|---|---|
+//! | `i16` (Q15) | `i16` (Q15) | [`DefaultAcc`] | `i64`, exact | `>> 15`, [`Rounding`], saturate to `i16` |
+//! | `FixedI16<Fs>` | `FixedI16<Ft>` | [`DefaultAcc`] | `i64`, exact | `>> Ft`, [`Rounding`], saturate |
+//! | `i16`, `FixedI16<Fs>` | `i16` (Q15) | [`Acc32<P>`](crate::headroom::Acc32) | `i32`, exact by a compile-time proof | as above |
+//! | `i32` (Q31) | `i32` (Q31) | [`DefaultAcc`] | `i64`, exact while Σ\|h\| < 2 | `>> 31`, [`Rounding`], saturate to `i32` |
+//! | `FixedI32<Fs>` | `FixedI32<Ft>` | [`DefaultAcc`] | `i64`, exact while in range | `>> Ft`, [`Rounding`], saturate |
+//! | `i32`, `FixedI32<Fs>` | as above | [`Acc128`] | `i128`, exact for any taps | as above |
+//! | `f32` | `f32` | [`DefaultAcc`] | `f32` | none |
+//! | `f32` | `f64` | [`DefaultAcc`] | `f64` | nearest `f32` (ties to even) |
+//! | `f64` | `f64` | [`DefaultAcc`] | `f64` | none |
 //!
 //! "Exact" is guaranteed, not hoped for: [`MulAcc::accumulator_fits`] decides from the taps
 //! whether any input in the sample type's full range could overflow the accumulator, and every
 //! constructor in this crate refuses such taps.
 
-mod fixed_point;
+mod accumulator;
+pub(crate) mod fixed_point;
 mod float;
 mod rounding;
 
+pub use accumulator::{Acc128, DefaultAcc, RuntimeChecked};
+pub use fixed_point::FixedPoint;
 pub use rounding::Rounding;
 
 pub(crate) mod sealed {
@@ -58,7 +66,7 @@ pub trait Sample: Copy + PartialEq + core::fmt::Debug + sealed::Sealed {
 ///
 /// [`mul_acc`]: MulAcc::mul_acc
 /// [`finish`]: MulAcc::finish
-pub trait MulAcc<T: Sample>: Sample {
+pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     /// The accumulator: wide enough to hold the exact sum for any tap set that passes
     /// [`accumulator_fits`](MulAcc::accumulator_fits).
     type Acc: Copy + core::fmt::Debug;
@@ -113,4 +121,19 @@ pub trait MulAcc<T: Sample>: Sample {
     /// assert!(!<i32 as MulAcc<i32>>::accumulator_fits(&[i32::MIN, i32::MIN]));
     /// ```
     fn accumulator_fits(taps: &[T]) -> bool;
+
+    /// The input as the filter admits it into its history, and whether it had to be changed.
+    ///
+    /// Every accumulator but [`Acc32`](crate::headroom::Acc32) admits every value unchanged.
+    /// `Acc32<P>` clamps the input to the range its proof `P` was made for, so that the proof
+    /// holds for any value the firmware passes; a clamp counts as a saturation.
+    ///
+    /// ```
+    /// use tapline::MulAcc;
+    /// assert_eq!(<i16 as MulAcc<i16>>::admit(i16::MIN), (i16::MIN, false));
+    /// ```
+    #[inline(always)]
+    fn admit(x: Self) -> (Self, bool) {
+        (x, false)
+    }
 }

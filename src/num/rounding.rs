@@ -50,6 +50,7 @@ impl Rounding {
     #[inline(always)]
     #[must_use]
     pub const fn shift(self, acc: i64, frac: u32) -> i64 {
+        // Kept in i64 (not via `shift_wide`) so 32-bit cores stay on 64-bit arithmetic.
         if frac == 0 {
             return acc;
         }
@@ -64,6 +65,36 @@ impl Rounding {
                 let half = 1i64 << (frac - 1);
                 let up = (rest > half) | ((rest == half) & (floor & 1 == 1));
                 floor + up as i64
+            }
+        }
+    }
+
+    /// [`shift`](Rounding::shift) for a 128-bit accumulator ([`Acc128`](crate::num::Acc128))
+    /// and for the headroom analysis: `acc / 2^frac` rounded by this mode, exact for every
+    /// `i128` and `frac` in 0..=126 (larger values are treated as 126).
+    ///
+    /// ```
+    /// use tapline::Rounding;
+    /// assert_eq!(Rounding::HalfUp.shift_wide(-(5 << 14), 15), -2);
+    /// assert_eq!(Rounding::Truncate.shift_wide(-(5 << 14), 15), -3);
+    /// assert_eq!(Rounding::HalfEven.shift_wide(i128::MIN, 1), i128::MIN / 2);
+    /// ```
+    #[inline(always)]
+    #[must_use]
+    pub const fn shift_wide(self, acc: i128, frac: u32) -> i128 {
+        if frac == 0 {
+            return acc;
+        }
+        let frac = if frac > 126 { 126 } else { frac };
+        let floor = acc >> frac;
+        match self {
+            Rounding::Truncate => floor,
+            Rounding::HalfUp => floor + ((acc >> (frac - 1)) & 1),
+            Rounding::HalfEven => {
+                let rest = acc & ((1i128 << frac) - 1);
+                let half = 1i128 << (frac - 1);
+                let up = (rest > half) | ((rest == half) & (floor & 1 == 1));
+                floor + up as i128
             }
         }
     }

@@ -1,0 +1,23 @@
+//! Headroom: proof, before flashing, that a fixed-point filter cannot overflow, and a bound on
+//! how far it strays from the ideal (float64) filter.
+//!
+//! * [`Headroom`] — exact `const` analysis of a tap set for an [`InputRange`]: Σ|h|, DC gain,
+//!   peak tap, accumulator and output bounds, guard bits, the smallest safe accumulator, and
+//!   the worst-case input that reaches each bound.
+//! * [`ProvenTaps`] + [`Fir::proven`](crate::Fir::proven) — the 32-bit Q15 accumulator
+//!   ([`Acc32`]), reachable only through a proof the compiler checks.
+//! * [`ErrorBound`] and [`measure_deviation`] — the computed and the measured distance from
+//!   float64, in output LSBs, with saturation counted apart.
+//! * [`AccTrace`] — the accumulator extremes a real (replayed) signal used.
+
+mod analysis;
+mod deviation;
+mod proof;
+mod range;
+mod trace;
+
+pub use analysis::{AccWidth, Extreme, Headroom};
+pub use deviation::{Deviation, ErrorBound, measure_deviation};
+pub use proof::{Acc32, ProvenTaps};
+pub use range::{Align, InputRange};
+pub use trace::AccTrace;
