@@ -11,7 +11,9 @@ use fixed::{FixedI16, FixedI32};
 /// [`InputRange`]: computed exactly, in integers, by `const fn`s — so it can run inside a
 /// `const` item of a firmware build as well as in a host tool.
 ///
-/// All bounds are attained: for the accumulator bounds, by the sequences of
+/// The range analysed is the declared one widened to include 0, because a filter's history holds
+/// zeros after construction and reset ([`input`](Headroom::input)). The accumulator bounds are
+/// attained by the sequences of
 /// [`worst_case_input`](Headroom::worst_case_input) (x\[n−k\] at the end of the range that
 /// matches the sign of h\[k\]). The L1-norm bound |y| ≤ max|x|·Σ|h| is the classic worst-case
 /// scaling rule (A. V. Oppenheim & R. W. Schafer, *Discrete-Time Signal Processing*, 3rd ed.,
@@ -95,7 +97,7 @@ impl Headroom {
             taps: 0,
             tap_frac,
             sample_bits,
-            input: input.within_word(sample_bits),
+            input: input.including_zero().within_word(sample_bits),
             positive: 0,
             negative: 0,
             peak: 0,
@@ -220,7 +222,9 @@ impl Headroom {
         self.sample_bits
     }
 
-    /// The input range analysed, cut to the sample word.
+    /// The input range analysed: the declared range widened to include 0 (the history's value
+    /// after construction or reset, which the filter sums like any input) and cut to the sample
+    /// word.
     #[must_use]
     pub const fn input(&self) -> InputRange {
         self.input

@@ -16,16 +16,29 @@ use fixed::types::extra::LeEqU16;
 pub trait ProvenTaps {
     /// The taps, raw Q15 (15 fractional bits), h\[0\] first.
     const TAPS: &'static [i16];
-    /// The raw input codes the filter can receive (cut to 16 bits). Inputs outside are clamped
-    /// into it by the filter, and counted as saturations, so the proof holds for any input.
+    /// The raw input codes the filter can receive (cut to 16 bits, and widened to include 0,
+    /// the history's start value). Inputs outside are clamped into it by the filter, and counted
+    /// as saturations, so the proof holds for any input.
     const INPUT: InputRange;
 }
 
 /// The 32-bit accumulator for 16-bit samples and Q15 taps, safe because `P`'s taps and range
 /// are proven at compile time never to overflow it. Only [`Fir::proven`] builds filters with
 /// it. On Cortex-M0/M3/M4 it replaces 64-bit multiply-accumulates by 32-bit ones.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub struct Acc32<P>(PhantomData<P>);
+
+// By hand: derives would demand the same traits of `P`, which is only a name for a proof.
+impl<P> Clone for Acc32<P> {
+    fn clone(&self) -> Self {
+        *self
+    }
+}
+impl<P> Copy for Acc32<P> {}
+impl<P> core::fmt::Debug for Acc32<P> {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        f.write_str("Acc32")
+    }
+}
 
 impl<P> Sealed for Acc32<P> {}
 
@@ -58,7 +71,7 @@ macro_rules! proven_mul_acc {
             #[inline(always)]
             fn admit(x: Self) -> (Self, bool) {
                 let raw = x.raw();
-                let kept = P::INPUT.within_word(16).clamp(raw);
+                let kept = P::INPUT.including_zero().within_word(16).clamp(raw);
                 (<$s as FixedPoint>::from_raw(kept), kept != raw)
             }
         }

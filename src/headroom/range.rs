@@ -116,6 +116,23 @@ impl InputRange {
         }
     }
 
+    /// The smallest range holding this one and 0. A filter's history holds zeros after
+    /// construction and [`reset`](crate::Fir::reset), so every analysis covers 0 as an input.
+    ///
+    /// ```
+    /// use tapline::headroom::InputRange;
+    /// let r = InputRange::codes(100, 200)?.including_zero();
+    /// assert_eq!((r.min(), r.max()), (0, 200));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub const fn including_zero(self) -> InputRange {
+        InputRange {
+            min: if self.min > 0 { 0 } else { self.min },
+            max: if self.max < 0 { 0 } else { self.max },
+        }
+    }
+
     /// `x` clamped into the range.
     #[inline(always)]
     #[must_use]
