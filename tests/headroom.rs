@@ -433,7 +433,7 @@ fn guard_bits_follow_the_l1_norm() {
         assert!((report.l1_norm() - l1).abs() < 1e-3);
         assert_eq!(
             report.guard_bits(),
-            (l1 as f64).log2().ceil().max(0.0) as u32,
+            l1.log2().ceil().max(0.0) as u32,
             "Σ|h| = {l1}"
         );
     }
