@@ -8,6 +8,9 @@
 //!
 //! Run: `cargo run --release --example silo_scale`
 
+use tapline::headroom::{
+    Acc32, AccTrace, Align, ErrorBound, Headroom, InputRange, ProvenTaps, measure_deviation,
+};
 use tapline::{Fir, Rounding, Sample};
 
 const SAMPLE_RATE_HZ: f64 = 1000.0;
@@ -26,6 +29,20 @@ static SMOOTHING_Q15: [i16; TAPS] = {
     }
     taps
 };
+
+/// What the ADC can deliver: 12-bit codes, mid-scale subtracted, left-aligned in 16 bits.
+const ADC: InputRange = match InputRange::adc(12, Align::Left, 16) {
+    Ok(range) => range,
+    Err(_) => panic!("impossible ADC description"),
+};
+
+/// The table and the ADC range, named so the compiler can prove the 32-bit accumulator safe.
+struct Smoothing;
+
+impl ProvenTaps for Smoothing {
+    const TAPS: &'static [i16] = &SMOOTHING_Q15;
+    const INPUT: InputRange = ADC;
+}
 
 /// The ideal taps, for the float64 reference.
 static SMOOTHING_F64: [f64; TAPS] = [1.0 / TAPS as f64; TAPS];
@@ -94,35 +111,37 @@ fn main() -> Result<(), tapline::Error> {
         .collect();
     let input: Vec<i16> = codes.iter().map(|&c| code_to_q15(c)).collect();
 
-    // Firmware path: Q15 in, Q15 out, filtered one DMA half-buffer (64 samples) at a time.
-    let mut fir = Fir::<i16, TAPS>::new(&SMOOTHING_Q15)?.with_rounding(Rounding::HalfUp);
+    // Before flashing: prove the headroom for what the ADC can produce, at compile time.
+    const REPORT: Headroom = Headroom::q15(&SMOOTHING_Q15, ADC);
+    const _: () = assert!(REPORT.fits(32) && !REPORT.can_saturate(Rounding::HalfUp));
+    let bound = ErrorBound::new::<i16, i16>(&SMOOTHING_F64, &SMOOTHING_Q15, ADC, Rounding::HalfUp)?;
+
+    // Firmware path: Q15 in, Q15 out, the proven 32-bit accumulator, filtered one DMA
+    // half-buffer (64 samples) at a time.
+    let mut fir: Fir<'static, i16, TAPS, i16, Acc32<Smoothing>> = Fir::proven();
     let mut output = input.clone();
     for half_buffer in output.chunks_mut(64) {
         fir.process_in_place(half_buffer);
     }
 
-    // Host reference: the same input values through the ideal taps in float64.
-    let mut reference = Fir::<f64, TAPS>::new(&SMOOTHING_F64)?;
-    let ideal: Vec<f64> = input.iter().map(|&x| reference.push(x.to_f64())).collect();
+    // Host evidence, replaying the same capture: the accumulator the real signal used, and the
+    // distance from the ideal filter (the same input values through the exact taps in float64).
+    let mut replay: Fir<'static, i16, TAPS, i16, Acc32<Smoothing>> = Fir::proven();
+    let mut trace = AccTrace::new();
+    let replayed: Vec<i16> = input
+        .iter()
+        .map(|&x| replay.push_traced(x, &mut trace))
+        .collect();
+    assert_eq!(
+        replayed, output,
+        "per-sample and block paths must agree bit for bit"
+    );
+    let mut checked: Fir<'static, i16, TAPS, i16, Acc32<Smoothing>> = Fir::proven();
+    let deviation = measure_deviation(&mut checked, &SMOOTHING_F64, input.iter().copied());
 
     let delay = fir
         .group_delay()
         .map_or(f64::NAN, |d| f64::from(d.samples()));
-    // One Q15 LSB is 2^-15; one ADC code is 16 Q15 LSB (left-aligned 12 bits).
-    let lsb = 1.0 / 32768.0;
-    let max_dev_lsb = output
-        .iter()
-        .zip(&ideal)
-        .map(|(&y, &r)| (y.to_f64() - r).abs() / lsb)
-        .fold(0.0, f64::max);
-    // What quantizing the taps can cost at most, plus half an LSB of output rounding.
-    let max_input = input.iter().map(|&x| x.to_f64().abs()).fold(0.0, f64::max);
-    let tap_error: f64 = SMOOTHING_Q15
-        .iter()
-        .zip(&SMOOTHING_F64)
-        .map(|(&q, &h)| (q.to_f64() - h).abs())
-        .sum();
-    let bound_lsb = max_input * tap_error / lsb + 0.5;
 
     // Noise and hum on the full-silo plateau (3.1 s .. 5 s, past the filter's settling time):
     // deviation from the true load, in ADC codes, before and after smoothing.
@@ -151,9 +170,34 @@ fn main() -> Result<(), tapline::Error> {
         delay / SAMPLE_RATE_HZ * 1000.0
     );
     println!("  saturated outputs:        {}", fir.saturations());
-    println!("  max |Q15 - float64|:      {max_dev_lsb:.2} LSB (Q15)");
-    println!("  bound from tap quantization + rounding: {bound_lsb:.2} LSB");
-    if max_dev_lsb > bound_lsb {
+    println!();
+    println!("headroom, proven before flashing (12-bit ADC left-aligned in 16 bits):");
+    for line in REPORT.to_string().lines() {
+        println!("  {line}");
+    }
+    println!(
+        "  accumulator: the proven 32-bit one, spare bits for any ADC input: {}",
+        REPORT.spare_bits(32)
+    );
+    println!(
+        "  error bound vs float64:   {:.2} LSB (taps) + {:.2} LSB (rounding) = {:.2} LSB",
+        bound.quantization_lsb(),
+        bound.rounding_lsb(),
+        bound.lsb()
+    );
+    println!("measured on this capture:");
+    println!(
+        "  accumulator used:         {}..={} ({} bits of 32, {} spare)",
+        trace.min(),
+        trace.max(),
+        trace.bits_used(),
+        trace.spare_bits(32)
+    );
+    println!(
+        "  max |Q15 - float64|:      {:.2} LSB over {} outputs ({} saturated, counted apart)",
+        deviation.max_lsb, deviation.compared, deviation.saturated
+    );
+    if deviation.max_lsb > bound.lsb() {
         eprintln!("deviation exceeds its bound: the fixed-point path is wrong");
         std::process::exit(1);
     }
