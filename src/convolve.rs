@@ -33,7 +33,9 @@ pub enum Span {
 
 impl Span {
     /// For [`convolve`] of a signal of length `l` with a kernel of length `k` (both ≥ 1): the
-    /// output length and the index in the full result of the first output.
+    /// output length and the index in the full result of the first output. For an empty
+    /// operand the length is 0 (the operations themselves return [`Error::EmptyInput`]);
+    /// lengths beyond `usize::MAX` saturate. Never panics.
     ///
     /// ```
     /// use tapline::Span;
@@ -43,8 +45,11 @@ impl Span {
     #[must_use]
     pub const fn layout(self, l: usize, k: usize) -> (usize, usize) {
         let (short, long) = if l < k { (l, k) } else { (k, l) };
+        if short == 0 {
+            return (0, 0);
+        }
         match self {
-            Span::Full => (l + k - 1, 0),
+            Span::Full => (l.saturating_add(k) - 1, 0),
             Span::Same => (long, (short - 1) / 2),
             Span::Valid => (long - short + 1, short - 1),
         }

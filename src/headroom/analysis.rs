@@ -93,6 +93,15 @@ const fn max_u32(a: u32, b: u32) -> u32 {
 
 impl Headroom {
     const fn start(tap_frac: u32, sample_bits: u32, input: InputRange) -> Headroom {
+        // Public entry points pass any u32; keep every later shift in range.
+        let sample_bits = if sample_bits == 0 {
+            1
+        } else if sample_bits > 63 {
+            63
+        } else {
+            sample_bits
+        };
+        let tap_frac = if tap_frac > 63 { 63 } else { tap_frac };
         Headroom {
             taps: 0,
             tap_frac,
@@ -188,8 +197,8 @@ impl Headroom {
         report
     }
 
-    /// Any fixed-point taps `T` on samples of `sample_bits` bits, for generic host code (not
-    /// `const`).
+    /// Any fixed-point taps `T` on samples of `sample_bits` bits (taken in 1..=63), for
+    /// generic host code (not `const`).
     ///
     /// ```
     /// use tapline::headroom::{Headroom, InputRange};

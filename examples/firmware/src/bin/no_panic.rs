@@ -1,0 +1,146 @@
+//! Link-time proof that no panic is reachable from tapline's streaming paths.
+//!
+//! Every streaming filter and kernel is exercised on inputs the optimiser cannot see
+//! (`black_box`). The panic handler calls a function that exists nowhere: if any panic path
+//! survives optimisation, the linker cannot resolve it and the build fails. Built by CI with
+//! `cargo build --release --bin no_panic` for thumbv7em-none-eabihf and thumbv6m-none-eabi.
+#![no_std]
+#![no_main]
+
+use core::hint::black_box;
+use fixed::types::{I1F15, I4F12};
+use tapline::headroom::{Acc32, AccTrace, measure_deviation};
+use tapline::num::Acc128;
+use tapline::{Fir, GroupDelay, Ring, Rounding, Span, convolve, correlate};
+use tapline_firmware::{SMOOTH_64, Smooth64};
+
+#[panic_handler]
+fn panic(_: &core::panic::PanicInfo) -> ! {
+    unsafe extern "C" {
+        /// Deliberately undefined: referencing it means a panic path was linked in.
+        fn tapline_streaming_path_can_panic() -> !;
+    }
+    // SAFETY: never executed in a successful build — the symbol does not exist, so a build
+    // that references it does not link.
+    unsafe { tapline_streaming_path_can_panic() }
+}
+
+static Q15_TAPS: [i16; 13] = [
+    -600, 0, 1800, 4000, 6500, 8200, 9000, 8200, 6500, 4000, 1800, 0, -600,
+];
+static Q31_TAPS: [i32; 7] = [
+    1 << 27,
+    1 << 28,
+    1 << 29,
+    1 << 30,
+    1 << 29,
+    1 << 28,
+    1 << 27,
+];
+static LOUD_Q31: [i32; 3] = [i32::MIN, i32::MIN, i32::MAX];
+static F32_TAPS: [f32; 9] = [0.02, 0.06, 0.12, 0.18, 0.24, 0.18, 0.12, 0.06, 0.02];
+static F64_TAPS: [f64; 9] = [0.02, 0.06, 0.12, 0.18, 0.24, 0.18, 0.12, 0.06, 0.02];
+static FIXED_TAPS: [I1F15; 4] = [I1F15::from_bits(8192); 4];
+
+/// Filters `len` opaque samples of each type every way the API offers.
+fn exercise(seed: i32, len: usize, rounding: Rounding) {
+    let mut block_i16 = [0i16; 64];
+    let mut block_i32 = [0i32; 64];
+    let mut block_f32 = [0f32; 64];
+    let len = len.min(64);
+    for (i, ((a, b), c)) in block_i16
+        .iter_mut()
+        .zip(block_i32.iter_mut())
+        .zip(block_f32.iter_mut())
+        .enumerate()
+    {
+        let v = seed.wrapping_mul(i as i32 + 1);
+        *a = v as i16;
+        *b = v;
+        *c = v as f32;
+    }
+
+    if let Ok(fir) = Fir::<i16, 13>::new(black_box(&Q15_TAPS)) {
+        let mut fir = fir.with_rounding(rounding);
+        black_box(fir.push(black_box(block_i16[0])));
+        let mut out = [0i16; 64];
+        let _ = fir.process(&block_i16[..len], &mut out[..len]);
+        fir.process_in_place(&mut block_i16[..len]);
+        let mut trace = AccTrace::new();
+        black_box(fir.push_traced(block_i16[1], &mut trace));
+        black_box(fir.group_delay());
+        let _ = fir.set_taps(black_box(&Q15_TAPS));
+        black_box(fir.clear_saturations());
+        fir.reset();
+        black_box(out);
+    }
+
+    let mut proven: Fir<'static, i16, 64, i16, Acc32<Smooth64>> = Fir::proven();
+    proven.process_in_place(&mut block_i16[..len]);
+    black_box(proven.push(block_i16[2]));
+    black_box(&SMOOTH_64);
+
+    if let Ok(mut fir) = Fir::<i32, 7>::new(black_box(&Q31_TAPS)) {
+        fir.process_in_place(&mut block_i32[..len]);
+        black_box(fir.saturations());
+    }
+    if let Ok(mut fir) = Fir::<i32, 3, i32, Acc128>::with_accumulator(black_box(&LOUD_Q31)) {
+        black_box(fir.push(block_i32[3]));
+    }
+    if let Ok(mut fir) = Fir::<f32, 9>::new(black_box(&F32_TAPS)) {
+        fir.process_in_place(&mut block_f32[..len]);
+    }
+    if let Ok(mut fir) = Fir::<f32, 9, f64>::new(black_box(&F64_TAPS)) {
+        black_box(fir.push(block_f32[4]));
+    }
+    if let Ok(mut fir) = Fir::<f64, 9>::new(black_box(&F64_TAPS)) {
+        black_box(fir.push(f64::from(block_f32[5])));
+    }
+    if let Ok(mut fir) = Fir::<I4F12, 4, I1F15>::new(black_box(&FIXED_TAPS)) {
+        black_box(fir.push(I4F12::from_bits(block_i16[6])));
+        if let Ok(mut checked) = Fir::<i16, 13>::new(&Q15_TAPS) {
+            let deviation =
+                measure_deviation(&mut checked, &[0.1; 13], block_i16[..len].iter().copied());
+            black_box(deviation);
+        }
+    }
+
+    let mut conv = [0i16; 80];
+    let h_len = black_box(7usize).min(len).min(Q15_TAPS.len());
+    for span in [Span::Full, Span::Same, Span::Valid] {
+        let (out_len, _) = span.layout(len, h_len);
+        if let Some(out) = conv.get_mut(..out_len) {
+            let _ = convolve(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ = correlate(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+        }
+    }
+    let mut conv_f = [0f32; 80];
+    let _ = convolve(
+        &block_f32[..len],
+        &F32_TAPS,
+        &mut conv_f[..len + 8],
+        Span::Full,
+        rounding,
+    );
+    black_box(conv);
+    black_box(conv_f);
+
+    let mut ring = Ring::<i32, 5>::new(0);
+    for &v in &block_i32[..len] {
+        ring.push(v);
+    }
+    black_box(ring.latest());
+    black_box(ring.as_slices());
+    black_box(GroupDelay::of(&F32_TAPS));
+}
+
+#[unsafe(no_mangle)]
+pub extern "C" fn _start() -> ! {
+    let modes = [Rounding::HalfUp, Rounding::Truncate, Rounding::HalfEven];
+    let mut i = 0usize;
+    loop {
+        let rounding = black_box(modes)[i % 3];
+        exercise(black_box(i as i32), black_box(i), rounding);
+        i = i.wrapping_add(1);
+    }
+}
