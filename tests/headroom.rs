@@ -6,22 +6,12 @@ mod common;
 use common::*;
 use fixed::types::{I1F15, I4F12};
 use proptest::prelude::*;
-use proptest::test_runner::Config;
 use tapline::headroom::{
     Acc32, AccTrace, AccWidth, Align, ErrorBound, Extreme, Headroom, InputRange, ProvenTaps,
     measure_deviation,
 };
 use tapline::num::{Acc128, FixedPoint};
 use tapline::{Error, Fir, MulAcc, Rounding, Sample};
-
-fn config() -> Config {
-    let cases = std::env::var("PROPTEST_CASES")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(256u32)
-        .max(256);
-    Config::with_cases(cases)
-}
 
 fn rounding() -> impl Strategy<Value = Rounding> {
     prop::sample::select(Rounding::ALL.to_vec())
@@ -77,7 +67,7 @@ fn inputs_in(range: InputRange, len: usize, seed: u64) -> Vec<i64> {
 }
 
 proptest! {
-    #![proptest_config(config())]
+    #![proptest_config(cases::config())]
 
     /// The worst-case inputs make the exact model reach the accumulator bounds exactly, and
     /// no input in range goes beyond them. (Q15 taps, 16-bit samples, any declared range.)
@@ -342,7 +332,7 @@ fn check_proven<P: ProvenTaps, const N: usize>(x: &[i16], mode: Rounding) {
 }
 
 proptest! {
-    #![proptest_config(config())]
+    #![proptest_config(cases::config())]
 
     #[test]
     fn proven_accumulator_equals_default_path(x in prop::collection::vec(any::<i16>(), 0..300), mode in rounding()) {

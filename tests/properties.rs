@@ -9,17 +9,8 @@ use common::*;
 use fixed::types::{I1F15, I1F31, I4F12, I8F24, I16F16};
 use fixed::{FixedI16, types::extra::U0};
 use proptest::prelude::*;
-use proptest::test_runner::Config;
-use tapline::{Error, Fir, MulAcc, Ring, Rounding, Sample, Span, convolve, correlate};
-
-fn config() -> Config {
-    let cases = std::env::var("PROPTEST_CASES")
-        .ok()
-        .and_then(|v| v.parse().ok())
-        .unwrap_or(256u32)
-        .max(256);
-    Config::with_cases(cases)
-}
+use tapline::num::DefaultAcc;
+use tapline::{Error, Fir, Ring, Rounding, Span, convolve, correlate};
 
 fn rounding() -> impl Strategy<Value = Rounding> {
     prop::sample::select(Rounding::ALL.to_vec())
@@ -55,128 +46,33 @@ fn block_sizes() -> impl Strategy<Value = Vec<usize>> {
     prop::collection::vec(0usize..=40, 1..6)
 }
 
-/// Runs one fixed-point FIR every way the API offers — per sample, per block with the given
-/// splits, in place, after `reset` — and checks each output and the saturation counter against
-/// the exact model, bit for bit. Rejected tap sets must be exactly the ones whose worst-case
-/// input overflows the accumulator.
-fn check_fixed_fir<S, T, const N: usize>(h: &[i64], x: &[i64], sizes: &[usize], mode: Rounding)
-where
-    S: MulAcc<T, Acc = i64> + Raw,
-    T: Sample + Raw,
-{
-    let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
-    let xs: Vec<S> = x.iter().map(|&v| S::from_raw(v)).collect();
-
-    let x_max = (1i64 << (S::BITS - 1)) - 1;
-    let x_min = -x_max - 1;
-    // The input that drives the sum to each extreme: every x[n−k] at the end of the range whose
-    // product with h[k] is largest (resp. smallest).
-    let worst_high: i128 = h
-        .iter()
-        .map(|&t| i128::from(t) * i128::from(if t > 0 { x_max } else { x_min }))
-        .sum();
-    let worst_low: i128 = h
-        .iter()
-        .map(|&t| i128::from(t) * i128::from(if t > 0 { x_min } else { x_max }))
-        .sum();
-    let overflows = worst_high > i128::from(i64::MAX) || worst_low < i128::from(i64::MIN);
-
-    let mut fir = match Fir::<S, N, T>::new(&taps) {
-        Ok(f) => {
-            assert!(
-                !overflows,
-                "accepted taps whose worst case overflows i64: {h:?}"
-            );
-            f.with_rounding(mode)
-        }
-        Err(e) => {
-            assert_eq!(e, Error::AccumulatorOverflow);
-            assert!(overflows, "rejected taps whose worst case fits i64: {h:?}");
-            return;
-        }
-    };
-
-    let model: Vec<(i128, bool)> = fir_exact(h, x)
-        .into_iter()
-        .map(|acc| finish_exact(acc, T::FRAC, S::BITS, mode))
-        .collect();
-    let expected: Vec<S> = model.iter().map(|&(v, _)| S::from_raw(v as i64)).collect();
-    let expected_saturations = model.iter().filter(|&&(_, s)| s).count() as u32;
-
-    let per_sample: Vec<S> = xs.iter().map(|&v| fir.push(v)).collect();
-    assert_eq!(
-        per_sample, expected,
-        "push vs exact model, taps {h:?}, {mode:?}"
-    );
-    assert_eq!(fir.saturations(), expected_saturations);
-
-    fir.reset();
-    assert_eq!(fir.saturations(), 0);
-    let mut blocked = vec![S::ZERO; xs.len()];
-    let mut at = 0;
-    for len in block_lengths(xs.len(), sizes) {
-        fir.process(&xs[at..at + len], &mut blocked[at..at + len])
-            .unwrap();
-        at += len;
-    }
-    assert_eq!(blocked, expected, "process with splits {sizes:?}");
-    assert_eq!(fir.clear_saturations(), expected_saturations);
-
-    fir.reset();
-    let mut in_place = xs.clone();
-    let mut at = 0;
-    for len in block_lengths(xs.len(), sizes) {
-        fir.process_in_place(&mut in_place[at..at + len]);
-        at += len;
-    }
-    assert_eq!(in_place, expected, "process_in_place with splits {sizes:?}");
-    assert_eq!(fir.saturations(), expected_saturations);
-
-    // The worst-case sequences themselves, fed after an arbitrary history: no wraparound.
-    let worst: Vec<i64> = h
-        .iter()
-        .rev()
-        .map(|&t| if t > 0 { x_max } else { x_min })
-        .chain(h.iter().rev().map(|&t| if t > 0 { x_min } else { x_max }))
-        .collect();
-    let mut tail: Vec<i64> = x.to_vec();
-    tail.extend(&worst);
-    let model_tail = fir_exact(h, &tail);
-    fir.reset();
-    for (n, &v) in tail.iter().enumerate() {
-        let y = fir.push(S::from_raw(v));
-        let (want, _) = finish_exact(model_tail[n], T::FRAC, S::BITS, mode);
-        assert_eq!(y.raw(), want as i64, "worst-case input at {n}");
-    }
-}
-
 fn inputs(bits: u32) -> impl Strategy<Value = Vec<i64>> {
     prop::collection::vec(raw_code(bits), 0..200)
 }
 
 proptest! {
-    #![proptest_config(config())]
+    #![proptest_config(cases::config())]
 
     /// Q15 samples and Q15 taps (raw i16), every rounding mode, inputs that saturate.
     #[test]
     fn q15_matches_exact_model(h in raw_taps(16), x in inputs(16), sizes in block_sizes(), mode in rounding()) {
-        with_tap_count!(h.len(), |N| check_fixed_fir::<i16, i16, N>(&h, &x, &sizes, mode));
+        with_tap_count!(h.len(), |N| check_fixed_fir::<i16, i16, DefaultAcc, N>(64, &h, &x, &sizes, mode));
     }
 
     /// Q31 samples and taps (raw i32), including tap sets the accumulator check must reject.
     #[test]
     fn q31_matches_exact_model(h in raw_taps(32), x in inputs(32), sizes in block_sizes(), mode in rounding()) {
-        with_tap_count!(h.len(), |N| check_fixed_fir::<i32, i32, N>(&h, &x, &sizes, mode));
+        with_tap_count!(h.len(), |N| check_fixed_fir::<i32, i32, DefaultAcc, N>(64, &h, &x, &sizes, mode));
     }
 
     /// `fixed` types: I1F15 taps on I1F15 samples and on 4.12 samples (a 12-bit ADC code).
     #[test]
     fn fixed16_formats_match_exact_model(h in raw_taps(16), x in inputs(16), sizes in block_sizes(), mode in rounding()) {
         with_tap_count!(h.len(), |N| {
-            check_fixed_fir::<I1F15, I1F15, N>(&h, &x, &sizes, mode);
-            check_fixed_fir::<I4F12, I1F15, N>(&h, &x, &sizes, mode);
+            check_fixed_fir::<I1F15, I1F15, DefaultAcc, N>(64, &h, &x, &sizes, mode);
+            check_fixed_fir::<I4F12, I1F15, DefaultAcc, N>(64, &h, &x, &sizes, mode);
             // Integer taps (no fractional bits): the rounding step is the identity.
-            check_fixed_fir::<FixedI16<U0>, FixedI16<U0>, N>(&h, &x, &sizes, mode);
+            check_fixed_fir::<FixedI16<U0>, FixedI16<U0>, DefaultAcc, N>(64, &h, &x, &sizes, mode);
         });
     }
 
@@ -184,8 +80,8 @@ proptest! {
     #[test]
     fn fixed32_formats_match_exact_model(h in raw_taps(32), x in inputs(32), sizes in block_sizes(), mode in rounding()) {
         with_tap_count!(h.len(), |N| {
-            check_fixed_fir::<I8F24, I1F31, N>(&h, &x, &sizes, mode);
-            check_fixed_fir::<I1F31, I16F16, N>(&h, &x, &sizes, mode);
+            check_fixed_fir::<I8F24, I1F31, DefaultAcc, N>(64, &h, &x, &sizes, mode);
+            check_fixed_fir::<I1F31, I16F16, DefaultAcc, N>(64, &h, &x, &sizes, mode);
         });
     }
 

@@ -5,9 +5,13 @@
 //! a mistake in the library cannot hide in the reference.
 #![allow(dead_code)]
 
+#[cfg(not(fuzzing))]
+pub mod cases;
+
 use fixed::types::extra::{LeEqU16, LeEqU32};
 use fixed::{FixedI16, FixedI32};
-use tapline::Rounding;
+use tapline::num::RuntimeChecked;
+use tapline::{Error, Fir, MulAcc, Rounding, Sample};
 
 /// y[n] = Σ_{k=0}^{N−1} h[k]·x[n−k] with x[m] = 0 for m < 0: the output of an FIR filter with
 /// zero initial history, one output per input, summed in f64 in ascending k.
@@ -255,3 +259,108 @@ macro_rules! with_tap_count {
 
 /// The tap counts [`with_tap_count!`] instantiates.
 pub const TAP_COUNTS: [usize; 11] = [1, 2, 3, 4, 5, 7, 8, 13, 16, 31, 64];
+
+/// Runs one fixed-point FIR every way the API offers — per sample, per block with the given
+/// splits, in place, after `reset` — and checks each output and the saturation counter against
+/// the exact model, bit for bit. Rejected tap sets must be exactly the ones whose worst-case
+/// input overflows the accumulator.
+///
+/// `acc_bits` is the accumulator width `W` stands for (64 for `DefaultAcc`, 128 for `Acc128`).
+/// Shared by the proptest properties and the fuzz targets, so both check the same things.
+pub fn check_fixed_fir<S, T, W, const N: usize>(
+    acc_bits: u32,
+    h: &[i64],
+    x: &[i64],
+    sizes: &[usize],
+    mode: Rounding,
+) where
+    S: MulAcc<T, W> + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
+    let xs: Vec<S> = x.iter().map(|&v| S::from_raw(v)).collect();
+
+    let x_max = (1i64 << (S::BITS - 1)) - 1;
+    let x_min = -x_max - 1;
+    // The input that drives the sum to each extreme: every x[n−k] at the end of the range whose
+    // product with h[k] is largest (resp. smallest).
+    let worst_high: i128 = h
+        .iter()
+        .map(|&t| i128::from(t) * i128::from(if t > 0 { x_max } else { x_min }))
+        .sum();
+    let worst_low: i128 = h
+        .iter()
+        .map(|&t| i128::from(t) * i128::from(if t > 0 { x_min } else { x_max }))
+        .sum();
+    let acc_max = if acc_bits >= 128 { i128::MAX } else { (1i128 << (acc_bits - 1)) - 1 };
+    let overflows = worst_high > acc_max || worst_low < -acc_max - 1;
+
+    let mut fir = match Fir::<S, N, T, W>::with_accumulator(&taps) {
+        Ok(f) => {
+            assert!(
+                !overflows,
+                "accepted taps whose worst case overflows i64: {h:?}"
+            );
+            f.with_rounding(mode)
+        }
+        Err(e) => {
+            assert_eq!(e, Error::AccumulatorOverflow);
+            assert!(overflows, "rejected taps whose worst case fits {acc_bits} bits: {h:?}");
+            return;
+        }
+    };
+
+    let model: Vec<(i128, bool)> = fir_exact(h, x)
+        .into_iter()
+        .map(|acc| finish_exact(acc, T::FRAC, S::BITS, mode))
+        .collect();
+    let expected: Vec<S> = model.iter().map(|&(v, _)| S::from_raw(v as i64)).collect();
+    let expected_saturations = model.iter().filter(|&&(_, s)| s).count() as u32;
+
+    let per_sample: Vec<S> = xs.iter().map(|&v| fir.push(v)).collect();
+    assert_eq!(
+        per_sample, expected,
+        "push vs exact model, taps {h:?}, {mode:?}"
+    );
+    assert_eq!(fir.saturations(), expected_saturations);
+
+    fir.reset();
+    assert_eq!(fir.saturations(), 0);
+    let mut blocked = vec![S::ZERO; xs.len()];
+    let mut at = 0;
+    for len in block_lengths(xs.len(), sizes) {
+        fir.process(&xs[at..at + len], &mut blocked[at..at + len])
+            .unwrap();
+        at += len;
+    }
+    assert_eq!(blocked, expected, "process with splits {sizes:?}");
+    assert_eq!(fir.clear_saturations(), expected_saturations);
+
+    fir.reset();
+    let mut in_place = xs.clone();
+    let mut at = 0;
+    for len in block_lengths(xs.len(), sizes) {
+        fir.process_in_place(&mut in_place[at..at + len]);
+        at += len;
+    }
+    assert_eq!(in_place, expected, "process_in_place with splits {sizes:?}");
+    assert_eq!(fir.saturations(), expected_saturations);
+
+    // The worst-case sequences themselves, fed after an arbitrary history: no wraparound.
+    let worst: Vec<i64> = h
+        .iter()
+        .rev()
+        .map(|&t| if t > 0 { x_max } else { x_min })
+        .chain(h.iter().rev().map(|&t| if t > 0 { x_min } else { x_max }))
+        .collect();
+    let mut tail: Vec<i64> = x.to_vec();
+    tail.extend(&worst);
+    let model_tail = fir_exact(h, &tail);
+    fir.reset();
+    for (n, &v) in tail.iter().enumerate() {
+        let y = fir.push(S::from_raw(v));
+        let (want, _) = finish_exact(model_tail[n], T::FRAC, S::BITS, mode);
+        assert_eq!(y.raw(), want as i64, "worst-case input at {n}");
+    }
+}
