@@ -51,7 +51,7 @@ fuzz_target!(|case: Case| {
     };
     let h = narrow(&case.taps[..n], bits);
     let x = narrow(&case.inputs, bits);
-    common::with_tap_count!(n, |N| match case.format {
+    with_tap_count!(n, |N| match case.format {
         Format::Q15 => common::check_fixed_fir::<i16, i16, DefaultAcc, N>(64, &h, &x, &sizes, mode),
         Format::Q31 => common::check_fixed_fir::<i32, i32, DefaultAcc, N>(64, &h, &x, &sizes, mode),
         Format::Q31Wide => common::check_fixed_fir::<i32, i32, Acc128, N>(128, &h, &x, &sizes, mode),

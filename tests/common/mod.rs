@@ -5,7 +5,6 @@
 //! a mistake in the library cannot hide in the reference.
 #![allow(dead_code)]
 
-#[cfg(not(fuzzing))]
 pub mod cases;
 
 use fixed::types::extra::{LeEqU16, LeEqU32};
