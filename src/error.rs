@@ -35,6 +35,34 @@ pub enum Error {
         /// Length of the quantized taps.
         quantized: usize,
     },
+    /// An output buffer is shorter than what the call produces (decimators, interpolators).
+    OutputTooShort {
+        /// The number of outputs the call produces.
+        needed: usize,
+        /// The length that was passed.
+        found: usize,
+    },
+    /// Taps that a folded (linear-phase) filter needs symmetric or antisymmetric are neither.
+    NotLinearPhase,
+    /// Taps that a half-band filter needs in half-band form are not: an odd count, with every
+    /// tap an even, non-zero distance from the centre equal to zero.
+    NotHalfBand,
+    /// An interleaved buffer does not hold a whole number of frames (one sample per channel).
+    PartialFrame {
+        /// The buffer's length.
+        len: usize,
+        /// The channel count, of which the length must be a multiple.
+        channels: usize,
+    },
+    /// An output shift larger than the register it shifts.
+    ShiftTooLarge {
+        /// The shift asked for.
+        shift: u32,
+        /// The largest shift allowed.
+        max: u32,
+    },
+    /// A passband edge outside (0, ½) cycles per sample, or one too narrow for the design.
+    InvalidPassband,
 }
 
 impl fmt::Display for Error {
@@ -59,6 +87,30 @@ impl fmt::Display for Error {
                 f,
                 "the ideal taps have {ideal} entries but the quantized taps {quantized}: \
                  they must describe the same filter"
+            ),
+            Error::OutputTooShort { needed, found } => write!(
+                f,
+                "output buffer has {found} elements but the call produces {needed}"
+            ),
+            Error::NotLinearPhase => f.write_str(
+                "the taps are neither symmetric nor antisymmetric, so they cannot be folded",
+            ),
+            Error::NotHalfBand => f.write_str(
+                "the taps are not half-band: the count must be odd and every tap an even, \
+                 non-zero distance from the centre must be zero",
+            ),
+            Error::PartialFrame { len, channels } => write!(
+                f,
+                "interleaved buffer of {len} samples is not a whole number of \
+                 {channels}-channel frames"
+            ),
+            Error::ShiftTooLarge { shift, max } => write!(
+                f,
+                "output shift of {shift} bits is larger than the largest allowed, {max}"
+            ),
+            Error::InvalidPassband => f.write_str(
+                "the passband edge must lie strictly between 0 and 0.5 cycles per sample \
+                 and leave room for the design",
             ),
         }
     }

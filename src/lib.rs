@@ -75,5 +75,10 @@ pub mod ring;
 pub use convolve::{Span, convolve, correlate};
 pub use error::Error;
 pub use filter::{Fir, GroupDelay};
+
+pub use filter::{
+    CicDecimator, Decimator, HalfBandDecimator, Interpolator, LinearPhaseFir, MovingAverage,
+    MultiChannelFir,
+};
 pub use num::{MulAcc, Rounding, Sample};
 pub use ring::Ring;

@@ -68,6 +68,27 @@ impl<T: Copy, const N: usize> Ring<T, N> {
         }
     }
 
+    /// Appends `value` and returns the value it drops, the one pushed `N` calls ago (the fill
+    /// value during the first `N` calls). O(1), as [`push`](Ring::push).
+    ///
+    /// ```
+    /// use tapline::Ring;
+    /// let mut ring = Ring::<i32, 2>::new(0);
+    /// assert_eq!(ring.shift_in(i32::MIN), 0);
+    /// assert_eq!(ring.shift_in(7), 0);
+    /// assert_eq!(ring.shift_in(8), i32::MIN);
+    /// ```
+    #[inline]
+    pub fn shift_in(&mut self, value: T) -> T {
+        let leaving = match self.slots.get(self.next) {
+            Some(&v) => v,
+            // `next < N` always holds; this arm only keeps the path free of panics.
+            None => value,
+        };
+        self.push(value);
+        leaving
+    }
+
     /// The history as `(older, newer)`: `older` followed by `newer` is every value, oldest to
     /// newest. One of the two may be empty.
     #[inline]

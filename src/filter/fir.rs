@@ -1,7 +1,6 @@
 //! The direct-form FIR filter: y\[n\] = Σ_{k<N} h\[k\]·x\[n−k\].
 
 use super::GroupDelay;
-use crate::kernel::dot_reversed;
 use crate::num::{DefaultAcc, MulAcc, Rounding, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 
@@ -182,15 +181,7 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W> Fir<'a, S, N, T, W> {
     /// The exact (fixed point) or float accumulator for the current history, before rounding.
     #[inline]
     fn accumulate(&self) -> S::Acc {
-        let (older, newer) = self.history.as_slices();
-        // The newest sample meets h[0]: taps[..newer.len()] pair with `newer`, the rest with
-        // `older`; both slices are read newest-first by the kernel.
-        let (near, far) = self
-            .taps
-            .split_at_checked(newer.len())
-            .unwrap_or((self.taps.as_slice(), &[]));
-        let acc = dot_reversed::<S, T, W>(S::ACC_ZERO, near, newer);
-        dot_reversed::<S, T, W>(acc, far, older)
+        super::shared::history_dot::<S, T, W, N>(S::ACC_ZERO, &self.history, self.taps)
     }
 
     /// Filters `input` into `output`, sample by sample, exactly as repeated [`push`](Fir::push).

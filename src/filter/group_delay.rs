@@ -74,6 +74,12 @@ impl GroupDelay {
         }
     }
 
+    /// A delay of `half_samples`/2 samples, for structures whose delay follows from their
+    /// configuration rather than from a tap table.
+    pub(crate) const fn from_half_samples(half_samples: usize) -> GroupDelay {
+        GroupDelay { half_samples }
+    }
+
     /// Twice the delay in samples: exact.
     #[must_use]
     pub const fn half_samples(self) -> usize {

@@ -3,5 +3,25 @@
 mod fir;
 mod group_delay;
 
+// The structures built from the same ring, kernels and output step.
+mod cic;
+mod decimator;
+mod half_band;
+mod interpolator;
+mod linear_phase;
+mod moving_average;
+mod multichannel;
+mod shared;
+
 pub use fir::Fir;
 pub use group_delay::{GroupDelay, Symmetry};
+
+pub use cic::{
+    CicDecimator, CicRegister, cic_compensator, cic_growth_bits, cic_magnitude, cic_register_bits,
+};
+pub use decimator::Decimator;
+pub use half_band::HalfBandDecimator;
+pub use interpolator::Interpolator;
+pub use linear_phase::LinearPhaseFir;
+pub use moving_average::MovingAverage;
+pub use multichannel::MultiChannelFir;

@@ -1,5 +1,6 @@
 //! Portable kernels: plain iterator loops that compile to tight code on every target.
 
+use super::FoldMulAcc;
 use crate::num::{MulAcc, Sample};
 
 // `W` (the accumulator width) cannot be inferred from `S::Acc`; callers name it, e.g.
@@ -49,6 +50,96 @@ pub fn dot_reversed<S: MulAcc<T, W>, T: Sample, W>(
     #[allow(clippy::indexing_slicing)]
     for i in 0..len {
         acc = S::mul_acc(acc, taps[i], xs[len - 1 - i]);
+    }
+    acc
+}
+
+/// `acc + Σ taps[i] · xs[xs.len() − 1 − i·x_step]`, taking every `tap_step`-th tap: the `i`-th
+/// term pairs `taps[i·tap_step]` with the sample `i·x_step` places before the last one. Stops
+/// when either runs out. A step of 0 is taken as 1.
+///
+/// With `xs` a history ordered oldest→newest, `tap_step = L, x_step = 1` is one phase of an
+/// L-fold interpolator (taps p, p+L, p+2L, … against the newest low-rate samples), and
+/// `tap_step = x_step = 2` skips the zero taps of a half-band filter.
+///
+/// Same numeric behaviour as [`dot`]; taps are visited in ascending index.
+///
+/// ```
+/// use tapline::{kernel::dot_reversed_strided, num::DefaultAcc};
+/// // Taps 0, 2, 4 of [1, 9, 2, 9, 3] against the newest three of [10, 20, 30]: 1·30 + 2·20 + 3·10.
+/// let acc = dot_reversed_strided::<i16, i16, DefaultAcc>(0, &[1, 9, 2, 9, 3], 2, &[10, 20, 30], 1);
+/// assert_eq!(acc, 100);
+/// // Full scale: (−1)·(−1) in Q30, every other sample.
+/// let acc = dot_reversed_strided::<i16, i16, DefaultAcc>(0, &[i16::MIN], 1, &[5, i16::MIN], 2);
+/// assert_eq!(acc, 1 << 30);
+/// ```
+#[inline]
+#[must_use]
+pub fn dot_reversed_strided<S: MulAcc<T, W>, T: Sample, W>(
+    mut acc: S::Acc,
+    taps: &[T],
+    tap_step: usize,
+    xs: &[S],
+    x_step: usize,
+) -> S::Acc {
+    let taps = taps.iter().step_by(tap_step.max(1));
+    for (&h, &x) in taps.zip(xs.iter().rev().step_by(x_step.max(1))) {
+        acc = S::mul_acc(acc, h, x);
+    }
+    acc
+}
+
+/// The pre-add of a folded kernel: the pair of samples that share a tap is added (symmetric
+/// taps) or subtracted (antisymmetric taps) before the one multiply.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Fold {
+    /// `tap·(newer + older)`, for h\[k\] = h\[N−1−k\].
+    Sum,
+    /// `tap·(newer − older)`, for h\[k\] = −h\[N−1−k\].
+    Difference,
+}
+
+/// `acc + Σ taps[i] · (newer[newer.len() − 1 − i] ± older[i])` over
+/// `i < min(taps.len(), newer.len(), older.len())`: one multiply per pair of samples.
+///
+/// With a history ordered oldest→newest, `newer` read backward from its end gives x\[n−k\] and
+/// `older` read forward gives x\[n−(N−1−k)\]; with the first ⌊N/2⌋ taps this is the folded form
+/// of a linear-phase FIR (the centre tap of an odd length is added by the caller).
+///
+/// **Numerics:** [`FoldMulAcc`] — bit-identical to the unfolded sum in fixed point for taps that
+/// pass [`MulAcc::accumulator_fits`]; floats round the pre-add once more.
+///
+/// ```
+/// use tapline::kernel::{Fold, dot_folded};
+/// use tapline::num::DefaultAcc;
+/// // h = [3, 1, 1, 3] on x oldest→newest [1, 2, 4, 8]: 3·(8 + 1) + 1·(4 + 2) = 33.
+/// assert_eq!(dot_folded::<i16, i16, DefaultAcc>(0, &[3, 1], &[4, 8], &[1, 2], Fold::Sum), 33);
+/// // Full scale, antisymmetric: (−1)·(−1 − 32767 LSB) in Q30.
+/// let acc = dot_folded::<i16, i16, DefaultAcc>(0, &[i16::MIN], &[i16::MIN], &[i16::MAX], Fold::Difference);
+/// assert_eq!(acc, 65535 << 15);
+/// ```
+#[inline]
+#[must_use]
+pub fn dot_folded<S: FoldMulAcc<T, W>, T: Sample, W>(
+    mut acc: S::Acc,
+    taps: &[T],
+    newer: &[S],
+    older: &[S],
+    fold: Fold,
+) -> S::Acc {
+    let pairs = taps.iter().zip(newer.iter().rev().zip(older));
+    match fold {
+        Fold::Sum => {
+            for (&h, (&a, &b)) in pairs {
+                acc = S::mul_acc_sum(acc, h, a, b);
+            }
+        }
+        Fold::Difference => {
+            for (&h, (&a, &b)) in pairs {
+                acc = S::mul_acc_difference(acc, h, a, b);
+            }
+        }
     }
     acc
 }

@@ -1,0 +1,177 @@
+//! The interpolating FIR: L outputs per input, y\[nL + p\] = Σ_j h\[p + jL\]·x\[n − j\] — the
+//! FIR applied to the input with L − 1 zeros stuffed after each sample, without multiplying the
+//! zeros.
+
+use super::GroupDelay;
+use super::shared::{OutputStep, history_dot_strided, output_controls};
+use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::{Error, Ring};
+use core::marker::PhantomData;
+
+/// A polyphase interpolating FIR: `N` taps, interpolation factor `L` (a const: a factor of 0
+/// does not compile). Each input produces `L` outputs; output phase p uses the strided subset
+/// of taps p, p + L, p + 2L, … against the newest ⌈N/L⌉ inputs, so an input costs N
+/// multiply-accumulates in all, N/L per output.
+///
+/// * **What it computes:** exactly the plain [`Fir`](crate::Fir) on the same taps run over the
+///   zero-stuffed input x\[0\], 0, …, 0, x\[1\], 0, … (L − 1 zeros after each sample), bit for bit
+///   in fixed point. Zero-stuffing divides the signal's average by L, so taps designed for
+///   interpolation have a DC gain of L (common practice) — in Q15 each phase's taps sum to
+///   about 1.0.
+/// * **Accumulator:** each phase is its own sum: the constructor checks each phase's taps
+///   (not the whole table) against the accumulator, so Q31 tables of gain L ≥ 2 fit `i64` as
+///   long as every phase does.
+/// * **Rounding, saturation:** one rounding step per output, clamped and counted by
+///   [`saturations`](Interpolator::saturations).
+/// * **Group delay:** (N−1)/2 *output* samples for symmetric or antisymmetric taps
+///   ([`group_delay`](Interpolator::group_delay)).
+/// * **RAM:** the history is a `Ring` of N low-rate samples, of which the newest ⌈N/L⌉ are read.
+///
+/// ```
+/// use tapline::Interpolator;
+///
+/// // Linear interpolation by 2 in Q15: taps [0.5, 1.0 − 1 LSB, 0.5], DC gain ≈ 2.
+/// static LINEAR_2: [i16; 3] = [16384, 32767, 16384];
+/// let mut up = Interpolator::<i16, 3, 2>::new(&LINEAR_2)?;
+/// assert_eq!(up.push(1000), [500, 1000]);
+/// assert_eq!(up.push(3000), [2000, 3000]);
+/// // Full scale: −1.0 → −1.0 (−32767/32768 · −32768 rounds to −32767) and the midpoint.
+/// let mut out = [0i16; 4];
+/// assert_eq!(up.process(&[i16::MIN, i16::MIN], &mut out)?, 4);
+/// assert_eq!(out, [-14884, -32767, -32768, -32767]);
+/// assert_eq!(up.saturations(), 0);
+/// # Ok::<(), tapline::Error>(())
+/// ```
+#[derive(Clone, Debug)]
+pub struct Interpolator<
+    'a,
+    S: MulAcc<T, W>,
+    const N: usize,
+    const L: usize,
+    T: Sample = S,
+    W = DefaultAcc,
+> {
+    taps: &'a [T; N],
+    history: Ring<S, N>,
+    output: OutputStep,
+    width: PhantomData<W>,
+}
+
+impl<'a, S: MulAcc<T>, const N: usize, const L: usize, T: Sample> Interpolator<'a, S, N, L, T> {
+    /// An interpolator with impulse response `taps` (at the output rate), the default
+    /// accumulator, zero history, [`Rounding::HalfUp`](crate::Rounding::HalfUp).
+    ///
+    /// # Errors
+    /// [`Error::AccumulatorOverflow`] when some phase's taps could overflow the accumulator
+    /// for a full-scale input.
+    ///
+    /// ```
+    /// use tapline::{Error, Interpolator};
+    /// // Q31, gain 2 overall but each phase of [−1, −1, −1, −1] sums to −2: too loud for i64.
+    /// static LOUD: [i32; 4] = [i32::MIN; 4];
+    /// assert_eq!(Interpolator::<i32, 4, 2>::new(&LOUD).err(), Some(Error::AccumulatorOverflow));
+    /// // Each phase of this one holds a single tap of −1.0: fine.
+    /// assert!(Interpolator::<i32, 2, 2>::new(&[i32::MIN; 2]).is_ok());
+    /// ```
+    pub fn new(taps: &'a [T; N]) -> Result<Self, Error> {
+        Self::with_accumulator(taps)
+    }
+}
+
+impl<'a, S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W: RuntimeChecked>
+    Interpolator<'a, S, N, L, T, W>
+{
+    /// As [`new`](Interpolator::new), with the accumulator named by the type's `W` parameter.
+    ///
+    /// # Errors
+    /// As [`new`](Interpolator::new).
+    pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
+        const { assert!(L > 0, "an interpolation factor must be at least 1") };
+        // One phase's taps, gathered so the accumulator check sees exactly what one output sums.
+        let mut phase_taps = [T::ZERO; N];
+        for p in 0..L.min(N) {
+            let mut count = 0;
+            for (slot, &h) in phase_taps.iter_mut().zip(taps.iter().skip(p).step_by(L)) {
+                *slot = h;
+                count += 1;
+            }
+            if !S::accumulator_fits(phase_taps.get(..count).unwrap_or(&[])) {
+                return Err(Error::AccumulatorOverflow);
+            }
+        }
+        Ok(Interpolator {
+            taps,
+            history: Ring::new(S::ZERO),
+            output: OutputStep::new(),
+            width: PhantomData,
+        })
+    }
+}
+
+impl<S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W>
+    Interpolator<'_, S, N, L, T, W>
+{
+    output_controls!(output);
+
+    /// Takes one input and returns its L outputs, oldest first. Costs N multiply-accumulates
+    /// and L output steps; saturations are counted.
+    #[inline]
+    pub fn push(&mut self, x: S) -> [S; L] {
+        let x = self.output.admit::<S, T, W>(x);
+        self.history.push(x);
+        let (history, output, taps) = (&self.history, &mut self.output, self.taps.as_slice());
+        core::array::from_fn(|p| {
+            let phase = taps.get(p..).unwrap_or(&[]);
+            let acc = history_dot_strided::<S, T, W, N>(S::ACC_ZERO, history, phase, L, 0, 1);
+            output.finish::<S, T, W>(acc)
+        })
+    }
+
+    /// Interpolates `input` into the front of `output` (L outputs per input, in order), exactly
+    /// as repeated [`push`](Interpolator::push); returns how many outputs were written,
+    /// `L · input.len()`.
+    ///
+    /// # Errors
+    /// [`Error::OutputTooShort`] when `output` is shorter than `L · input.len()`; nothing is
+    /// processed then.
+    pub fn process(&mut self, input: &[S], output: &mut [S]) -> Result<usize, Error> {
+        let needed = input.len().saturating_mul(L);
+        if output.len() < needed {
+            return Err(Error::OutputTooShort {
+                needed,
+                found: output.len(),
+            });
+        }
+        for (&x, frame) in input.iter().zip(output.chunks_exact_mut(L)) {
+            for (slot, y) in frame.iter_mut().zip(self.push(x)) {
+                *slot = y;
+            }
+        }
+        Ok(needed)
+    }
+
+    /// Zero history, zero saturation count; taps and rounding stay.
+    pub fn reset(&mut self) {
+        self.history.fill(S::ZERO);
+        self.output.clear();
+    }
+
+    /// The interpolation factor L.
+    #[must_use]
+    pub const fn factor(&self) -> usize {
+        L
+    }
+
+    /// The group delay in *output* samples, (N−1)/2, when the taps are symmetric or
+    /// antisymmetric; `None` otherwise.
+    #[must_use]
+    pub fn group_delay(&self) -> Option<GroupDelay> {
+        GroupDelay::of(self.taps)
+    }
+
+    /// The taps (the impulse response at the output rate).
+    #[must_use]
+    pub fn taps(&self) -> &[T; N] {
+        self.taps
+    }
+}

@@ -1,0 +1,288 @@
+//! What every streaming structure shares, written once: the output step with its saturation
+//! counter, the convolution sums over a [`Ring`]'s two slices (plain, strided, folded), the
+//! decimation phase, and the block loops that make block calls equal per-sample calls.
+
+use crate::kernel::{Fold, FoldMulAcc, dot_folded, dot_reversed, dot_reversed_strided};
+use crate::num::{FixedPoint, MulAcc, Rounding, Sample};
+use crate::{Error, Ring};
+
+/// The one output step of the numeric contract — rounding mode and saturation counter — shared
+/// by every structure so that they all round, clamp and count the same way.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct OutputStep {
+    rounding: Rounding,
+    saturations: u32,
+}
+
+impl OutputStep {
+    pub(crate) const fn new() -> Self {
+        OutputStep {
+            rounding: Rounding::HalfUp,
+            saturations: 0,
+        }
+    }
+
+    /// The input as the history admits it ([`MulAcc::admit`]); a changed input is counted.
+    #[inline(always)]
+    pub(crate) fn admit<S: MulAcc<T, W>, T: Sample, W>(&mut self, x: S) -> S {
+        let (x, clamped) = S::admit(x);
+        self.count(clamped);
+        x
+    }
+
+    /// [`MulAcc::finish`] with this step's rounding; a saturated output is counted.
+    #[inline(always)]
+    pub(crate) fn finish<S: MulAcc<T, W>, T: Sample, W>(&mut self, acc: S::Acc) -> S {
+        let (y, saturated) = S::finish(acc, self.rounding);
+        self.count(saturated);
+        y
+    }
+
+    /// A raw fixed-point result clamped to `S`'s range; a clamp is counted.
+    #[inline(always)]
+    pub(crate) fn saturate<S: FixedPoint>(&mut self, raw: i64) -> S {
+        let clamped = raw.clamp(S::RAW_MIN, S::RAW_MAX);
+        self.count(clamped != raw);
+        S::from_raw(clamped)
+    }
+
+    #[inline(always)]
+    fn count(&mut self, event: bool) {
+        self.saturations = self.saturations.saturating_add(u32::from(event));
+    }
+
+    pub(crate) const fn rounding(&self) -> Rounding {
+        self.rounding
+    }
+
+    pub(crate) fn set_rounding(&mut self, rounding: Rounding) {
+        self.rounding = rounding;
+    }
+
+    pub(crate) const fn saturations(&self) -> u32 {
+        self.saturations
+    }
+
+    pub(crate) fn clear(&mut self) -> u32 {
+        core::mem::take(&mut self.saturations)
+    }
+}
+
+/// The rounding and saturation accessors every structure offers, over its `OutputStep` field
+/// (named by the path given, e.g. `output` or `core.output`): one text, so the contract reads the
+/// same on every type.
+macro_rules! output_controls {
+    ($($field:ident).+) => {
+        /// The same structure with another rounding mode for its output step (default
+        /// [`Rounding::HalfUp`](crate::Rounding::HalfUp)).
+        #[must_use]
+        pub fn with_rounding(mut self, rounding: crate::Rounding) -> Self {
+            self.$($field).+.set_rounding(rounding);
+            self
+        }
+
+        /// The rounding mode of the output step.
+        #[must_use]
+        pub fn rounding(&self) -> crate::Rounding {
+            self.$($field).+.rounding()
+        }
+
+        /// How many outputs have saturated (clamped to the sample type's range, never wrapped)
+        /// since construction, `reset` or [`clear_saturations`](Self::clear_saturations).
+        /// Stops at `u32::MAX`.
+        #[must_use]
+        pub fn saturations(&self) -> u32 {
+            self.$($field).+.saturations()
+        }
+
+        /// Sets the saturation counter to zero and returns what it held.
+        pub fn clear_saturations(&mut self) -> u32 {
+            self.$($field).+.clear()
+        }
+    };
+}
+pub(crate) use output_controls;
+
+/// `acc + Σ_k taps[k]·x[n−k]` over the history (x\[n\] its newest value), for
+/// `k < min(taps.len(), N)`: the plain FIR sum, in ascending k.
+#[inline]
+pub(crate) fn history_dot<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
+    acc: S::Acc,
+    history: &Ring<S, N>,
+    taps: &[T],
+) -> S::Acc {
+    let (older, newer) = history.as_slices();
+    // The newest sample meets taps[0]: taps[..newer.len()] pair with `newer`, the rest with
+    // `older`; both slices are read newest-first by the kernel.
+    let (near, far) = taps.split_at_checked(newer.len()).unwrap_or((taps, &[]));
+    let acc = dot_reversed::<S, T, W>(acc, near, newer);
+    dot_reversed::<S, T, W>(acc, far, older)
+}
+
+/// `acc + Σ_i taps[i·tap_step]·x[n − skip − i·x_step]` over the history, in ascending i, for as
+/// long as both the taps and the history last.
+#[inline]
+pub(crate) fn history_dot_strided<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
+    acc: S::Acc,
+    history: &Ring<S, N>,
+    taps: &[T],
+    tap_step: usize,
+    skip: usize,
+    x_step: usize,
+) -> S::Acc {
+    let (tap_step, x_step) = (tap_step.max(1), x_step.max(1));
+    let (older, newer) = history.as_slices();
+    // Offsets count back from the newest sample (x[n] is offset 0): `newer` holds offsets
+    // 0..newer.len(), `older` the ones after. The part of `newer` at offset ≥ skip, read
+    // backward, supplies the first terms.
+    let newer_used = newer.len().saturating_sub(skip);
+    let from_newer = newer_used.div_ceil(x_step);
+    let acc = dot_reversed_strided::<S, T, W>(
+        acc,
+        taps,
+        tap_step,
+        newer.get(..newer_used).unwrap_or(&[]),
+        x_step,
+    );
+    // The next term's offset, less the samples in `newer`, is how far it lies from the end of
+    // `older`.
+    let older_skip = (skip + from_newer * x_step).saturating_sub(newer.len());
+    let older = older
+        .get(..older.len().saturating_sub(older_skip))
+        .unwrap_or(&[]);
+    let taps = taps.get(from_newer * tap_step..).unwrap_or(&[]);
+    dot_reversed_strided::<S, T, W>(acc, taps, tap_step, older, x_step)
+}
+
+/// The folded linear-phase sum over a full history of N samples, h = `taps` (length N):
+/// Σ_{k<⌊N/2⌋} h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) plus, for odd N and [`Fold::Sum`], the centre
+/// term h\[c\]·x\[n−c\], c = (N−1)/2. (Antisymmetric taps have a zero centre, which is skipped.)
+#[inline]
+pub(crate) fn history_dot_folded<S: FoldMulAcc<T, W>, T: Sample, W, const N: usize>(
+    history: &Ring<S, N>,
+    taps: &[T],
+    fold: Fold,
+) -> S::Acc {
+    let (older, newer) = history.as_slices();
+    let half = N / 2;
+    // In oldest→newest order H = older ++ newer, tap k pairs H[N−1−k] (x[n−k]) with H[k]. Up to
+    // k = min(len older, len newer) the pair straddles the two slices; past it both samples lie
+    // in the longer slice.
+    let straddle = older.len().min(newer.len()).min(half);
+    let (first, rest) = taps
+        .get(..half)
+        .and_then(|t| t.split_at_checked(straddle))
+        .unwrap_or((&[], &[]));
+    let acc = dot_folded::<S, T, W>(S::ACC_ZERO, first, newer, older, fold);
+    let (backward, forward) = if older.len() <= newer.len() {
+        (newer.get(..newer.len() - older.len()).unwrap_or(&[]), newer)
+    } else {
+        (older, older.get(straddle..).unwrap_or(&[]))
+    };
+    let acc = dot_folded::<S, T, W>(acc, rest, backward, forward, fold);
+    if N % 2 == 1 && fold == Fold::Sum {
+        history_dot_strided::<S, T, W, N>(
+            acc,
+            history,
+            taps.get(half..half + 1).unwrap_or(&[]),
+            1,
+            half,
+            1,
+        )
+    } else {
+        acc
+    }
+}
+
+/// The position within a group of `M` inputs; the group's last input produces the output.
+#[derive(Clone, Copy, Debug, Default)]
+pub(crate) struct Phase<const M: usize> {
+    count: usize,
+}
+
+impl<const M: usize> Phase<M> {
+    /// Counts one input; `true` when it completes a group of `M`.
+    #[inline(always)]
+    pub(crate) fn tick(&mut self) -> bool {
+        self.count += 1;
+        if self.count >= M {
+            self.count = 0;
+            true
+        } else {
+            false
+        }
+    }
+
+    /// How many outputs `len` further inputs produce from here.
+    pub(crate) const fn outputs_for(&self, len: usize) -> usize {
+        (self.count + len) / M
+    }
+
+    /// Inputs taken since the last output (0 ≤ · < M).
+    pub(crate) const fn position(&self) -> usize {
+        self.count
+    }
+}
+
+/// Runs `push` over `input`, writing each `Some` output in turn to `output`, after checking once
+/// that `output` holds the `needed` outputs. Returns how many were written.
+pub(crate) fn decimate_block<S: Copy, Y>(
+    input: &[S],
+    output: &mut [Y],
+    needed: usize,
+    mut push: impl FnMut(S) -> Option<Y>,
+) -> Result<usize, Error> {
+    if output.len() < needed {
+        return Err(Error::OutputTooShort {
+            needed,
+            found: output.len(),
+        });
+    }
+    let mut slots = output.iter_mut();
+    for &x in input {
+        if let Some(y) = push(x) {
+            if let Some(slot) = slots.next() {
+                *slot = y;
+            }
+        }
+    }
+    Ok(needed)
+}
+
+/// Runs `push` over `buffer` and writes each `Some` output to the front of the same buffer
+/// (an output never overtakes the input it comes from). Returns how many were written.
+pub(crate) fn decimate_in_place<S: Copy>(
+    buffer: &mut [S],
+    mut push: impl FnMut(S) -> Option<S>,
+) -> usize {
+    let mut written = 0;
+    for i in 0..buffer.len() {
+        let Some(&x) = buffer.get(i) else { break };
+        if let Some(y) = push(x) {
+            if let Some(slot) = buffer.get_mut(written) {
+                *slot = y;
+            }
+            written += 1;
+        }
+    }
+    written
+}
+
+/// Runs `push` over `input` into `output`, one output per input, after checking once that the
+/// lengths are equal.
+pub(crate) fn map_block<S: Copy, Y>(
+    input: &[S],
+    output: &mut [Y],
+    push: impl FnMut(S) -> Y,
+) -> Result<(), Error> {
+    if input.len() != output.len() {
+        return Err(Error::OutputLength {
+            expected: input.len(),
+            found: output.len(),
+        });
+    }
+    for (y, v) in output.iter_mut().zip(input.iter().copied().map(push)) {
+        *y = v;
+    }
+    Ok(())
+}
