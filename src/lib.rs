@@ -18,6 +18,8 @@
 //! * [`kernel`] — dot products over contiguous slices.
 //! * [`filter`] — streaming filters ([`Fir`]), per sample or per block.
 //! * [`mod@convolve`] — finite convolution and cross-correlation of two slices.
+//! * [`design`] — from a spec to taps (windows, Kaiser, windowed sinc, Parks–McClellan with
+//!   `std`, Savitzky–Golay), quantization to Q15/Q31/`fixed`, and the measured response.
 //!
 //! ## Numeric contract
 //!
@@ -64,7 +66,12 @@
 #[doc = include_str!("../README.md")]
 struct ReadmeExamples;
 
+// `std` only adds the f64 design path and Parks–McClellan; everything else is core-only.
+#[cfg(feature = "std")]
+extern crate std;
+
 pub mod convolve;
+pub mod design;
 mod error;
 pub mod filter;
 pub mod headroom;

@@ -1,0 +1,353 @@
+//! A filter spec as a firmware engineer writes it, the Kaiser design that meets it, and the
+//! measurement of any taps (float or quantized) against it.
+
+use super::{Band, GainRange, Real, Window, gain_range, inside, kaiser, nyquist, windowed_sinc};
+use crate::Error;
+use crate::num::Sample;
+
+/// The band layout of a spec: edges in Hz, strictly increasing, each strictly between 0 and
+/// half the sample rate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+#[non_exhaustive]
+pub enum Shape<R> {
+    /// Pass 0..=`pass_hz`, stop `stop_hz`..=fs/2.
+    Lowpass {
+        /// Passband edge.
+        pass_hz: R,
+        /// Stopband edge.
+        stop_hz: R,
+    },
+    /// Stop 0..=`stop_hz`, pass `pass_hz`..=fs/2.
+    Highpass {
+        /// Stopband edge.
+        stop_hz: R,
+        /// Passband edge.
+        pass_hz: R,
+    },
+    /// Stop below `stop_low_hz`, pass `pass_low_hz`..=`pass_high_hz`, stop above `stop_high_hz`.
+    Bandpass {
+        /// Upper edge of the lower stopband.
+        stop_low_hz: R,
+        /// Lower edge of the passband.
+        pass_low_hz: R,
+        /// Upper edge of the passband.
+        pass_high_hz: R,
+        /// Lower edge of the upper stopband.
+        stop_high_hz: R,
+    },
+    /// Pass below `pass_low_hz`, stop `stop_low_hz`..=`stop_high_hz`, pass above `pass_high_hz`.
+    Bandstop {
+        /// Upper edge of the lower passband.
+        pass_low_hz: R,
+        /// Lower edge of the stopband.
+        stop_low_hz: R,
+        /// Upper edge of the stopband.
+        stop_high_hz: R,
+        /// Lower edge of the upper passband.
+        pass_high_hz: R,
+    },
+}
+
+/// A filter spec: sample rate, band edges, the largest passband ripple and the smallest
+/// stopband attenuation.
+///
+/// * `passband_ripple_db` — peak to peak: 20·log10(max|H|/min|H|) over the passband(s).
+/// * `stopband_attenuation_db` — −20·log10(max|H|) over the stopband(s), relative to a passband
+///   gain of 1.
+///
+/// ```
+/// use tapline::design::{Shape, Spec};
+/// // An invented silo scale: 1 kHz, pass to 5 Hz, stop from 50 Hz (mains hum), 60 dB.
+/// let spec = Spec {
+///     sample_rate_hz: 1000.0f32,
+///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+///     passband_ripple_db: 0.1,
+///     stopband_attenuation_db: 60.0,
+/// };
+/// let design = spec.kaiser::<128>()?;
+/// assert!(design.measured.meets() && design.taps.len() <= 128);
+/// // Edge case: a stopband edge at half the sample rate is outside (0, fs/2).
+/// let bad = Spec { shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 500.0 }, ..spec };
+/// assert_eq!(bad.kaiser::<128>().err(), Some(tapline::Error::FrequencyOutOfRange));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Spec<R> {
+    /// The sample rate in Hz.
+    pub sample_rate_hz: R,
+    /// The bands.
+    pub shape: Shape<R>,
+    /// Largest passband ripple, peak to peak, in dB (> 0).
+    pub passband_ripple_db: R,
+    /// Smallest stopband attenuation in dB (> 0).
+    pub stopband_attenuation_db: R,
+}
+
+/// A Kaiser-window design that meets its [`Spec`], with what went into it and what it measures.
+#[derive(Debug, Clone, PartialEq)]
+pub struct KaiserDesign<R, const N: usize> {
+    /// The taps, symmetric, gain 1 at the passband reference (DC, fs/2 or the band centre).
+    pub taps: heapless::Vec<R, N>,
+    /// The window's β, from the design attenuation.
+    pub beta: R,
+    /// The attenuation the window was chosen for: the larger of the stopband attenuation and
+    /// −20·log10 of the passband deviation the ripple allows (a Kaiser design has about the
+    /// same deviation in both).
+    pub design_attenuation_db: R,
+    /// Kaiser's length estimate (made odd where the band needs it); `taps.len()` is larger
+    /// when the estimate fell short of the spec.
+    pub estimated_len: usize,
+    /// The ideal band the window shaped (edges in the middle of the transition bands).
+    pub band: Band<R>,
+    /// The design measured against its spec.
+    pub measured: Measured<R>,
+}
+
+/// Taps measured against a [`Spec`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Measured<R> {
+    /// Passband ripple, peak to peak over all passbands, in dB.
+    pub passband_ripple_db: R,
+    /// Smallest attenuation over all stopbands, in dB relative to a gain of 1.
+    pub stopband_attenuation_db: R,
+    /// The smallest and largest passband gain.
+    pub passband: GainRange<R>,
+    /// The smallest and largest stopband gain.
+    pub stopband: GainRange<R>,
+    /// The spec's limits, to compare against.
+    pub limits: (R, R),
+}
+
+impl<R: Real> Measured<R> {
+    /// Whether the ripple is at most the spec's and the attenuation at least the spec's.
+    #[must_use]
+    pub fn meets(&self) -> bool {
+        self.passband_ripple_db <= self.limits.0 && self.stopband_attenuation_db >= self.limits.1
+    }
+}
+
+/// Up to two bands of each kind, as (low, high) in Hz.
+type Bands<R> = ([(R, R); 2], usize);
+
+impl<R: Real> Spec<R> {
+    /// The edges in order, checked.
+    fn edges(&self) -> Result<([R; 4], usize), Error> {
+        let half = nyquist(self.sample_rate_hz)?;
+        let z = R::ZERO;
+        let (e, n) = match self.shape {
+            Shape::Lowpass { pass_hz, stop_hz } => ([pass_hz, stop_hz, z, z], 2),
+            Shape::Highpass { stop_hz, pass_hz } => ([stop_hz, pass_hz, z, z], 2),
+            Shape::Bandpass {
+                stop_low_hz: a,
+                pass_low_hz: b,
+                pass_high_hz: c,
+                stop_high_hz: d,
+            }
+            | Shape::Bandstop {
+                pass_low_hz: a,
+                stop_low_hz: b,
+                stop_high_hz: c,
+                pass_high_hz: d,
+            } => ([a, b, c, d], 4),
+        };
+        for f in e.iter().take(n) {
+            inside(*f, half)?;
+        }
+        if e.iter()
+            .take(n)
+            .zip(e.iter().skip(1).take(n - 1))
+            .any(|(a, b)| !(a < b))
+        {
+            return Err(Error::EdgesNotIncreasing);
+        }
+        let db_ok = |v: R| v.is_finite() && v > R::ZERO;
+        if !db_ok(self.passband_ripple_db)
+            || !db_ok(self.stopband_attenuation_db)
+            || self.stopband_attenuation_db > R::from_f64(super::MAX_ATTENUATION_DB)
+        {
+            return Err(Error::InvalidDecibels);
+        }
+        Ok((e, n))
+    }
+
+    /// (passbands, stopbands).
+    fn bands(&self) -> Result<(Bands<R>, Bands<R>), Error> {
+        let ([a, b, c, d], _) = self.edges()?;
+        let (z, h) = (R::ZERO, self.sample_rate_hz * R::from_f64(0.5));
+        Ok(match self.shape {
+            Shape::Lowpass { .. } => (([(z, a), (z, z)], 1), ([(b, h), (z, z)], 1)),
+            Shape::Highpass { .. } => (([(b, h), (z, z)], 1), ([(z, a), (z, z)], 1)),
+            Shape::Bandpass { .. } => (([(b, c), (z, z)], 1), ([(z, a), (d, h)], 2)),
+            Shape::Bandstop { .. } => (([(z, a), (d, h)], 2), ([(b, c), (z, z)], 1)),
+        })
+    }
+
+    /// Whether the shape passes half the sample rate (and so needs an odd length).
+    fn needs_odd(&self) -> bool {
+        matches!(self.shape, Shape::Highpass { .. } | Shape::Bandstop { .. })
+    }
+
+    /// The largest passband deviation δp the ripple allows: 20·log10((1 + δp)/(1 − δp)) = ripple.
+    fn passband_deviation(&self) -> R {
+        let g = self.passband_ripple_db.db_to_gain();
+        (g - R::ONE) / (g + R::ONE)
+    }
+
+    /// Measures `taps` (float or quantized) against this spec: the passband ripple and the
+    /// stopband attenuation, each over all bands of its kind, by [`gain_range`].
+    ///
+    /// **Accuracy:** that of [`gain_range`]: in `f64` the figures are within 10⁻⁹ dB of the
+    /// true extremes unless a lobe is narrower than 1/(8N) of the sample rate.
+    ///
+    /// # Errors
+    /// The spec's errors ([`Error::FrequencyOutOfRange`], [`Error::EdgesNotIncreasing`],
+    /// [`Error::InvalidDecibels`]); [`Error::TooShort`] for no taps.
+    ///
+    /// ```
+    /// use tapline::design::{Shape, Spec};
+    /// let spec = Spec {
+    ///     sample_rate_hz: 1000.0f64,
+    ///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 60.0,
+    /// };
+    /// // A single tap passes everything: no ripple, no attenuation.
+    /// let m = spec.measure(&[1.0f64])?;
+    /// assert_eq!((m.passband_ripple_db, m.stopband_attenuation_db), (0.0, 0.0));
+    /// assert!(!m.meets());
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn measure<T: Sample>(&self, taps: &[T]) -> Result<Measured<R>, Error> {
+        let ((pass, n_pass), (stop, n_stop)) = self.bands()?;
+        let fs = self.sample_rate_hz;
+        let merge = |bands: &[(R, R)]| -> Result<GainRange<R>, Error> {
+            let mut all: Option<GainRange<R>> = None;
+            for &(lo, hi) in bands {
+                let g = gain_range(taps, lo, hi, fs)?;
+                all = Some(match all {
+                    None => g,
+                    Some(a) => GainRange {
+                        min: a.min.min_of(g.min),
+                        min_at_hz: if g.min < a.min {
+                            g.min_at_hz
+                        } else {
+                            a.min_at_hz
+                        },
+                        max: a.max.max_of(g.max),
+                        max_at_hz: if g.max > a.max {
+                            g.max_at_hz
+                        } else {
+                            a.max_at_hz
+                        },
+                    },
+                });
+            }
+            all.ok_or(Error::TooShort {
+                minimum: 1,
+                found: 0,
+            })
+        };
+        let passband = merge(pass.get(..n_pass).unwrap_or(&[]))?;
+        let stopband = merge(stop.get(..n_stop).unwrap_or(&[]))?;
+        Ok(Measured {
+            passband_ripple_db: passband.ripple_db(),
+            stopband_attenuation_db: stopband.attenuation_db(),
+            passband,
+            stopband,
+            limits: (self.passband_ripple_db, self.stopband_attenuation_db),
+        })
+    }
+
+    /// Designs the spec with a Kaiser window: β and the length from Kaiser's formulas
+    /// ([`kaiser`]), the ideal band's edges in the middle of the transition bands, the length
+    /// made odd where the band needs it; then the result is **measured** against the spec and,
+    /// if Kaiser's estimate fell short (it can, by a few tenths of a dB), lengthened one step
+    /// at a time (1 tap, or 2 to keep an odd length) up to 8 times.
+    ///
+    /// The taps go into a `heapless::Vec` of capacity `N`: no heap.
+    ///
+    /// **Accuracy:** the result meets the spec as [`measure`](Spec::measure) measures it. In
+    /// `f32` the taps are within 10⁻⁶·max|h| of the `f64` design of the same length (the
+    /// lengths can differ where the estimate lies within 10⁻⁵ of a whole number).
+    ///
+    /// # Errors
+    /// The spec's errors; [`Error::InvalidTransition`] for a transition so narrow that the
+    /// estimate exceeds [`MAX_DESIGN_TAPS`](super::MAX_DESIGN_TAPS);
+    /// [`Error::OutputLength`] when the design needs more than `N` taps (`expected` is the
+    /// length it needs); [`Error::SpecNotMet`] if it still misses after lengthening.
+    pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, Error> {
+        let ([a, b, c, d], _) = self.edges()?;
+        let two = R::from_f64(2.0);
+        let (band, transition) = match self.shape {
+            Shape::Lowpass { .. } => (
+                Band::Lowpass {
+                    cutoff_hz: (a + b) / two,
+                },
+                b - a,
+            ),
+            Shape::Highpass { .. } => (
+                Band::Highpass {
+                    cutoff_hz: (a + b) / two,
+                },
+                b - a,
+            ),
+            Shape::Bandpass { .. } => (
+                Band::Bandpass {
+                    low_hz: (a + b) / two,
+                    high_hz: (c + d) / two,
+                },
+                (b - a).min_of(d - c),
+            ),
+            Shape::Bandstop { .. } => (
+                Band::Bandstop {
+                    low_hz: (a + b) / two,
+                    high_hz: (c + d) / two,
+                },
+                (b - a).min_of(d - c),
+            ),
+        };
+        let stop_dev = (-self.stopband_attenuation_db).db_to_gain();
+        let dev = stop_dev.min_of(self.passband_deviation());
+        let design_attenuation_db = -dev.gain_to_db();
+        let beta = kaiser::beta_for_attenuation(design_attenuation_db)?;
+        let mut len =
+            kaiser::length_for_transition(design_attenuation_db, transition, self.sample_rate_hz)?;
+        let step = if self.needs_odd() { 2 } else { 1 };
+        if self.needs_odd() && len % 2 == 0 {
+            len += 1;
+        }
+        let estimated_len = len;
+        let mut taps: heapless::Vec<R, N> = heapless::Vec::new();
+        for _ in 0..=8 {
+            taps.clear();
+            if taps.resize(len, R::ZERO).is_err() {
+                return Err(Error::OutputLength {
+                    expected: len,
+                    found: N,
+                });
+            }
+            windowed_sinc(
+                band,
+                self.sample_rate_hz,
+                Window::Kaiser { beta },
+                &mut taps,
+            )?;
+            let measured = self.measure(&taps)?;
+            if measured.meets() {
+                return Ok(KaiserDesign {
+                    taps,
+                    beta,
+                    design_attenuation_db,
+                    estimated_len,
+                    band,
+                    measured,
+                });
+            }
+            len += step;
+        }
+        Err(Error::SpecNotMet { taps: len - step })
+    }
+}
