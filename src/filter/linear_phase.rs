@@ -15,9 +15,8 @@ use core::marker::PhantomData;
 ///
 /// * **Same numbers as [`Fir`](crate::Fir):** in fixed point the outputs are bit-identical to a
 ///   plain `Fir` on the same taps, for every rounding mode, saturating inputs included. The
-///   pre-add needs one more bit than a sample; it is formed in the accumulator's type, and the
-///   rare product that passes `i64` (Q31: (−1 − 1)·(−1) = 2^63) is carried modulo 2^64, which
-///   gives the exact sum because the constructor proves that sum fits (see
+///   pre-add needs one more bit than a sample; it is formed in the accumulator's type, and each
+///   folded product is bounded by the same worst case the constructor proves for the sum (see
 ///   [`FoldMulAcc`](crate::kernel::FoldMulAcc)). Floats round the pre-add once more than the
 ///   plain filter (not bit-identical; within the same γ_N bound).
 /// * **Accumulator:** as `Fir` — `i64` by default, [`Acc128`](crate::num::Acc128) by choice.

@@ -6,15 +6,16 @@
 //! is formed in the accumulator's integer type, where it is exact.
 //!
 //! **Why the folded sum is bit-identical to the plain one (fixed point).** The exact folded sum
-//! Σ h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) equals the plain FIR's exact sum term for term. With the
-//! default `i64` accumulator one folded Q31 product can reach 2^63 — (−2^31 − 2^31)·(−2^31) — one
-//! past `i64::MAX`; every product and every addition is therefore done modulo 2^64
-//! (`wrapping_mul`, `wrapping_add`). Arithmetic modulo 2^64 gives the exact sum modulo 2^64, and
-//! the filter's constructor has already proven, with [`MulAcc::accumulator_fits`] on the full tap
-//! set, that the exact sum lies inside `i64`: an integer in `i64` is determined by its residue
-//! modulo 2^64, so the wrapped result *is* the exact sum, the same bits as the plain FIR's. With
-//! [`Acc128`] the pre-add (≤ 2^32) and its product (≤ 2^63) are exact outright. Q15 products of a
-//! pre-add are at most 2^31 and never wrap an `i64`.
+//! Σ h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) equals the plain FIR's exact sum term for term, and the
+//! filter's constructor proves with [`MulAcc::accumulator_fits`] on the full tap set that this
+//! sum cannot leave the accumulator for any input. A folded product needs no more: it is at most
+//! the two terms h·x\[n−k\] and h·x\[n−(N−1−k)\] at their extremes, and every other term's
+//! extreme is ≥ 0, so it is bounded by the same worst case. (A Q31 product of 2^63 —
+//! (−1 − 1)·(−1), one past `i64::MAX` — needs a tap of −1.0 twice, Σ|h| ≥ 2, which the `i64`
+//! check refuses.) The products and sums are nevertheless taken modulo 2^64 (`wrapping_mul`,
+//! `wrapping_add`) as a second line: nothing can panic, and arithmetic modulo 2^64 of a result
+//! known to lie in `i64` gives that result exactly. With [`Acc128`] the pre-add (≤ 2^32) and its
+//! product (≤ 2^63) are exact outright. Q15 folded products are at most 2^31.
 
 use crate::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, Sample};
 use fixed::types::extra::{LeEqU16, LeEqU32};
@@ -32,12 +33,12 @@ use fixed::{FixedI16, FixedI32};
 ///
 /// ```
 /// use tapline::kernel::FoldMulAcc;
-/// // Q31 full scale: (−1 + −1)·(−1) = 2.0 in Q62 is 2^63, one past i64::MAX: it wraps to
-/// // i64::MIN …
+/// // Q31 full scale: (−1 + −1)·(−1) = 2.0 in Q62 is 2^63, one past i64::MAX (possible only for
+/// // taps a filter refuses): it wraps to i64::MIN …
 /// let acc = <i32 as FoldMulAcc<i32>>::mul_acc_sum(0, i32::MIN, i32::MIN, i32::MIN);
 /// assert_eq!(acc, i64::MIN);
-/// // … and the next term, (−1)·(0 − (−1)) = −1.0, brings the exact sum 2^63 − 2^62 = 2^62
-/// // back into range with the right bits, as the modular argument says.
+/// // … and a term of −1.0 brings the exact sum 2^63 − 2^62 = 2^62 back into range with the
+/// // right bits, as arithmetic modulo 2^64 guarantees.
 /// let acc = <i32 as FoldMulAcc<i32>>::mul_acc_difference(acc, i32::MIN, 0, i32::MIN);
 /// assert_eq!(acc, 1 << 62);
 /// ```
