@@ -431,8 +431,9 @@ const MAX_HALF: usize = 16;
 /// own rejection must suffice there. The taps sum to about 1 (unity DC gain) — check before
 /// quantizing.
 ///
-/// **Measured** (tests/cic.rs): N = 3, R = 10, M = 1, passband 0.2 of the output rate — the
-/// droop of 1.63 dB at the edge falls to below 0.03 dB with 5 taps.
+/// **Measured** (tests/cic.rs, on a grid independent of the design's): N = 3, R = 10, M = 1,
+/// passband 0.2 of the output rate — the droop of 1.72 dB falls to 0.097 dB with 3 taps and
+/// 0.008 dB with 5; N = 5, R = 16, passband 0.3 — 6.61 dB falls to 0.055 dB with 7 taps.
 ///
 /// # Errors
 /// [`Error::InvalidPassband`] when `passband` is not inside (0, ½), or the equations are too
