@@ -780,3 +780,72 @@ fn structures_with_unsuitable_taps_are_refused_with_their_error() {
         "interleaved buffer of 6 samples is not a whole number of 4-channel frames"
     );
 }
+
+#[test]
+fn half_band_lowpass_has_zero_taps_a_centre_of_one_half_and_skips_them() {
+    // A windowed sinc cut off at a quarter of the sample rate is a half-band filter: every tap
+    // an even, non-zero distance from the centre is zero, the centre is exactly ½, and the
+    // zero-phase response satisfies A(f) + A(½ − f) = 1, i.e. it is symmetric about fs/4
+    // (R. Lyons, *Understanding Digital Signal Processing*, §5.7; CHECKS.md item 10). N = 11
+    // (N + 1 a multiple of 4): (N + 1)/2 + 1 = 7 non-zero taps. Hann window (common practice).
+    const N: usize = 11;
+    let c = (N / 2) as f64;
+    let pi = std::f64::consts::PI;
+    let ideal: Vec<f64> = (0..N)
+        .map(|k| {
+            let t = k as f64 - c;
+            let sinc = if t == 0.0 {
+                0.5
+            } else {
+                (pi * t / 2.0).sin() / (pi * t)
+            };
+            sinc * (0.5 - 0.5 * (2.0 * pi * (k as f64 + 1.0) / (N as f64 + 1.0)).cos())
+        })
+        .collect();
+    assert_eq!(ideal[N / 2], 0.5);
+    for k in (0..N).filter(|&k| k != N / 2 && k.abs_diff(N / 2) % 2 == 0) {
+        assert!(ideal[k].abs() < 1e-16, "tap {k} = {}", ideal[k]);
+    }
+    // Unnormalised (normalising the DC gain would move the centre off ½); Q15 by rounding.
+    let q15: [i16; N] = core::array::from_fn(|k| (ideal[k] * 32768.0).round() as i16);
+    assert_eq!(q15[N / 2], 16384, "centre 0.5 in Q15");
+    assert_eq!(q15.iter().filter(|&&v| v != 0).count(), N.div_ceil(2) + 1); // (N+1)/2 + 1
+    let hb = HalfBandDecimator::<i16, N>::new(&q15).unwrap();
+    assert_eq!(hb.multiplies(), 7);
+
+    // Symmetry about fs/4, measured on the f64 filter's gathered impulse response.
+    // In f64 the sine leaves ~1e-17 where the zeros are; the structure demands exact zeros, so
+    // they are written as such (as a designer would).
+    let taps: [f64; N] = core::array::from_fn(|k| {
+        if k != N / 2 && k.abs_diff(N / 2) % 2 == 0 {
+            0.0
+        } else {
+            ideal[k]
+        }
+    });
+    let mut full = vec![0.0; N + 1];
+    for d in 0..2 {
+        let mut hb = HalfBandDecimator::<f64, N>::new(&taps).unwrap();
+        let lead = 1 - d;
+        let outs: Vec<f64> = (0..lead + N + 2)
+            .filter_map(|n| hb.push(if n == lead { 1.0 } else { 0.0 }))
+            .collect();
+        for (j, &y) in outs.iter().enumerate() {
+            if d + 2 * j < full.len() {
+                full[d + 2 * j] = y;
+            }
+        }
+    }
+    // Zero-phase amplitude: A(f) = Re{H(f)·e^{j2πfc}}.
+    let amplitude = |f: f64| {
+        let (re, im) = dtft(&full, f);
+        re * (2.0 * pi * f * c).cos() - im * (2.0 * pi * f * c).sin()
+    };
+    for j in 0..=50 {
+        let f = 0.25 * j as f64 / 50.0;
+        assert!(
+            (amplitude(f) + amplitude(0.5 - f) - 1.0).abs() < 1e-12,
+            "f = {f}"
+        );
+    }
+}
