@@ -551,6 +551,15 @@ fn check_multichannel<S, T, const N: usize, const C: usize>(
     });
     assert_eq!(got, want, "process_in_place");
     assert_eq!(fir.saturations(), sats);
+    // Each channel's history holds that channel's newest sample.
+    for (c, frame_value) in xs.iter().rev().take(C).rev().enumerate() {
+        assert_eq!(
+            fir.history(c).map(|r| r.latest()),
+            Some(*frame_value),
+            "channel {c}"
+        );
+    }
+    assert!(fir.history(C).is_none());
     if C > 1 {
         let mut partial = vec![S::ZERO; C + 1];
         assert_eq!(
