@@ -56,7 +56,7 @@ pub use response::{
     Complex, GainRange, dc_gain, gain_range, group_delay_at, half_power_frequency, response_at,
 };
 pub use savitzky_golay::{savitzky_golay_slope, savitzky_golay_smoother};
-pub use spec::{KaiserDesign, Measured, Shape, Spec};
+pub use spec::{FixedDesign, KaiserDesign, Measured, Shape, Spec};
 pub use window::Window;
 
 /// The largest Kaiser β accepted: I₀(40) ≈ 1.5·10¹⁶ keeps every window value finite in `f32`,

@@ -67,9 +67,10 @@ impl Quantized {
 ///
 /// **Rounding:** each tap goes to the nearest code (ties away from zero); then, so that the
 /// quantized DC gain is the float DC gain rounded to the format, the taps whose rounding lost
-/// most are moved by one code until Σq = round(Σh·2^F) (the largest-remainder method). Taps
-/// that were exactly symmetric stay symmetric: codes move in mirror pairs (and the centre tap
-/// of an odd length alone). When that is impossible — even length, symmetric taps and an odd
+/// most are moved by one code until Σq = round(Σh·2^F) (the largest-remainder method); no tap
+/// moves twice. Taps that were exactly symmetric stay symmetric: codes move in mirror pairs,
+/// and when the distance to the target is odd the centre tap of an odd length moves first, by
+/// one code toward its exact value. When that is impossible — even length, symmetric taps and an odd
 /// distance to the target — **symmetry wins**: Σq lands on the nearer of round(Σh·2^F) ± 1,
 /// within 1 LSB of Σh·2^F, and [`Quantized::dc_exact`] is `false`. (Linear phase is structural:
 /// [`GroupDelay::of`](crate::GroupDelay::of) depends on it.) A target beyond what N codes can
@@ -147,10 +148,20 @@ pub fn quantize<S: Sample, T: FixedPoint>(taps: &[S], out: &mut [T]) -> Result<Q
     if symmetric {
         let odd_gap = (goal - raw_sum(out)) % 2 != 0;
         match centre {
-            // The centre tap alone moves the sum by one.
+            // The centre tap alone moves the sum by one. It moves toward its exact value
+            // (an error of 1 − |remainder| ≤ 1 LSB); the gap stays even either way and the
+            // pairs close the rest.
             Some(c) if odd_gap => {
-                let step = (goal - raw_sum(out)).signum();
-                nudge(out, c, step);
+                let v = scaled(c);
+                let q = out.get(c).map_or(0, |q| q.raw()) as f64;
+                let toward = if v > q {
+                    1
+                } else if v < q {
+                    -1
+                } else {
+                    (goal - raw_sum(out)).signum()
+                };
+                nudge(out, c, toward);
             }
             // Only pairs move: settle for the nearer reachable sum (same parity as now).
             None if odd_gap => {
@@ -170,11 +181,9 @@ pub fn quantize<S: Sample, T: FixedPoint>(taps: &[S], out: &mut [T]) -> Result<Q
             break;
         }
         if symmetric && gap.abs() == 1 {
-            // Only the centre tap can close an odd gap without breaking symmetry.
-            match centre {
-                Some(c) if nudge(out, c, step) => continue,
-                _ => break,
-            }
+            // Pairs cannot close an odd gap and the centre has had its move (only a tap at the
+            // format's limit gets here): stop one LSB short rather than move a tap twice.
+            break;
         }
         let candidates = if symmetric { n / 2 } else { n };
         let mut best: Option<(usize, f64)> = None;

@@ -3,7 +3,7 @@
 
 use super::{Band, GainRange, Real, Window, gain_range, inside, kaiser, nyquist, windowed_sinc};
 use crate::Error;
-use crate::num::Sample;
+use crate::num::{FixedPoint, Sample};
 
 /// The band layout of a spec: edges in Hz, strictly increasing, each strictly between 0 and
 /// half the sample rate.
@@ -94,15 +94,31 @@ pub struct KaiserDesign<R, const N: usize> {
     pub beta: R,
     /// The attenuation the window was chosen for: the larger of the stopband attenuation and
     /// −20·log10 of the passband deviation the ripple allows (a Kaiser design has about the
-    /// same deviation in both).
+    /// same deviation in both), raised if the first design missed.
     pub design_attenuation_db: R,
-    /// Kaiser's length estimate (made odd where the band needs it); `taps.len()` is larger
-    /// when the estimate fell short of the spec.
+    /// Kaiser's length estimate for the spec (made odd where the band needs it); `taps.len()`
+    /// is larger when the first design fell short of the spec.
     pub estimated_len: usize,
     /// The ideal band the window shaped (edges in the middle of the transition bands).
     pub band: Band<R>,
     /// The design measured against its spec.
     pub measured: Measured<R>,
+}
+
+/// A Kaiser design whose **quantized** taps meet the [`Spec`], from [`Spec::kaiser_fixed`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct FixedDesign<R, T, const N: usize> {
+    /// The float design the fixed-point taps were quantized from.
+    pub float: KaiserDesign<R, N>,
+    /// The fixed-point taps, symmetric, DC gain as [`Quantized`](super::Quantized) reports.
+    pub taps: heapless::Vec<T, N>,
+    /// What quantization did (DC gain kept, largest tap error).
+    pub quantized: super::Quantized,
+    /// The fixed-point taps measured against the spec.
+    pub measured: Measured<R>,
+    /// The extra stopband attenuation, in dB, the float design was asked for so that the
+    /// quantized taps meet the spec (0 if they met it at once).
+    pub margin_db: R,
 }
 
 /// Taps measured against a [`Spec`].
@@ -263,21 +279,27 @@ impl<R: Real> Spec<R> {
 
     /// Designs the spec with a Kaiser window: β and the length from Kaiser's formulas
     /// ([`kaiser`]), the ideal band's edges in the middle of the transition bands, the length
-    /// made odd where the band needs it; then the result is **measured** against the spec and,
-    /// if Kaiser's estimate fell short (it can, by a few tenths of a dB), lengthened one step
-    /// at a time (1 tap, or 2 to keep an odd length) up to 8 times.
+    /// made odd where the band needs it; then the result is **measured** against the spec. If
+    /// Kaiser's formulas fell short (they can, by a few tenths of a dB), the design attenuation
+    /// is raised by the shortfall plus 0.1 dB — a larger β, and the length that goes with it,
+    /// at least one tap (two for odd-only shapes) longer than before — and the design is made
+    /// and measured again, up to 10 times in all.
     ///
     /// The taps go into a `heapless::Vec` of capacity `N`: no heap.
     ///
     /// **Accuracy:** the result meets the spec as [`measure`](Spec::measure) measures it. In
     /// `f32` the taps are within 10⁻⁶·max|h| of the `f64` design of the same length (the
-    /// lengths can differ where the estimate lies within 10⁻⁵ of a whole number).
+    /// lengths can differ where the estimate lies within 10⁻⁵ of a whole number), and the `f32`
+    /// response evaluation resolves about −96 dB (see [`response_at`](super::response_at)):
+    /// design and check specs beyond 80 dB in `f64`, on the host.
     ///
     /// # Errors
     /// The spec's errors; [`Error::InvalidTransition`] for a transition so narrow that the
     /// estimate exceeds [`MAX_DESIGN_TAPS`](super::MAX_DESIGN_TAPS);
     /// [`Error::OutputLength`] when the design needs more than `N` taps (`expected` is the
-    /// length it needs); [`Error::SpecNotMet`] if it still misses after lengthening.
+    /// length it needs); [`Error::SpecNotMet`] if it still misses after 10 designs, or the
+    /// raised design attenuation would pass [`MAX_ATTENUATION_DB`](super::MAX_ATTENUATION_DB)
+    /// (an `f32` design cannot resolve much beyond 120 dB).
     pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, Error> {
         let ([a, b, c, d], _) = self.edges()?;
         let two = R::from_f64(2.0);
@@ -310,18 +332,29 @@ impl<R: Real> Spec<R> {
             ),
         };
         let stop_dev = (-self.stopband_attenuation_db).db_to_gain();
-        let dev = stop_dev.min_of(self.passband_deviation());
-        let design_attenuation_db = -dev.gain_to_db();
-        let beta = kaiser::beta_for_attenuation(design_attenuation_db)?;
-        let mut len =
-            kaiser::length_for_transition(design_attenuation_db, transition, self.sample_rate_hz)?;
-        let step = if self.needs_odd() { 2 } else { 1 };
-        if self.needs_odd() && len % 2 == 0 {
-            len += 1;
-        }
-        let estimated_len = len;
+        let pass_dev = self.passband_deviation();
+        let mut design_attenuation_db = -stop_dev.min_of(pass_dev).gain_to_db();
+        let mut estimated_len = 0;
+        let mut last_len = 0;
         let mut taps: heapless::Vec<R, N> = heapless::Vec::new();
-        for _ in 0..=8 {
+        for attempt in 0..10 {
+            let beta = kaiser::beta_for_attenuation(design_attenuation_db)?;
+            let mut len = kaiser::length_for_transition(
+                design_attenuation_db,
+                transition,
+                self.sample_rate_hz,
+            )?;
+            if self.needs_odd() && len % 2 == 0 {
+                len += 1;
+            }
+            if attempt == 0 {
+                estimated_len = len;
+            } else {
+                // A wider window main lobe also widens the transition: on a short filter a
+                // larger β alone can leave the stopband edge where it was. Grow by a step too.
+                len = len.max(last_len + if self.needs_odd() { 2 } else { 1 });
+            }
+            last_len = len;
             taps.clear();
             if taps.resize(len, R::ZERO).is_err() {
                 return Err(Error::OutputLength {
@@ -346,8 +379,92 @@ impl<R: Real> Spec<R> {
                     measured,
                 });
             }
-            len += step;
+            // The window's β sets the peak error and the length the transition. A miss is
+            // answered by a larger design attenuation (by the shortfall, plus 0.1 dB), which
+            // raises β and, through Kaiser's formula, the length; the length grows at least one
+            // step per attempt.
+            let stop_short = self.stopband_attenuation_db - measured.stopband_attenuation_db;
+            let worst_pass_dev = (measured.passband.max - R::ONE)
+                .abs()
+                .max_of((R::ONE - measured.passband.min).abs());
+            let pass_short = (worst_pass_dev / pass_dev).gain_to_db();
+            let short = stop_short.max_of(pass_short).max_of(R::ZERO);
+            design_attenuation_db += short + R::from_f64(0.1);
+            if !(design_attenuation_db <= R::from_f64(super::MAX_ATTENUATION_DB)) {
+                break;
+            }
         }
-        Err(Error::SpecNotMet { taps: len - step })
+        Err(Error::SpecNotMet { taps: last_len })
+    }
+
+    /// [`kaiser`](Spec::kaiser), then [`quantize`](super::quantize) into the fixed-point
+    /// format `T` (`i16` for Q15, `i32` for Q31, `fixed` types), then [`measure`](Spec::measure)
+    /// the **quantized** taps. Rounding the taps adds an error of up to ½ LSB per tap, which can
+    /// cost a design that just met its spec a fraction of a dB; when the quantized taps miss,
+    /// the float design is asked for 0.5, 1, 2, 3, 4, 6 and then 9 dB more stopband attenuation
+    /// in turn, until they meet the spec.
+    ///
+    /// **Accuracy:** the quantized taps meet the spec as [`measure`](Spec::measure) measures
+    /// them; their DC gain is exact where symmetry allows (see [`quantize`](super::quantize)).
+    ///
+    /// # Errors
+    /// As [`kaiser`](Spec::kaiser) and [`quantize`](super::quantize); [`Error::SpecNotMet`] if
+    /// even 9 dB of margin does not help (the format is too coarse for the spec: Q15 taps of a
+    /// 150-tap lowpass do not reach 100 dB).
+    ///
+    /// ```
+    /// use tapline::design::{Shape, Spec};
+    /// let spec = Spec {
+    ///     sample_rate_hz: 1000.0f32,
+    ///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 60.0,
+    /// };
+    /// let d = spec.kaiser_fixed::<i16, 128>()?;
+    /// assert!(d.measured.meets() && d.quantized.dc_exact());
+    /// // Edge case: 16-bit taps cannot reach 100 dB, whatever the margin (32-bit ones can).
+    /// let deep = Spec {
+    ///     sample_rate_hz: 1000.0f64,
+    ///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 100.0,
+    /// };
+    /// let q15 = deep.kaiser_fixed::<i16, 512>();
+    /// assert!(matches!(q15, Err(tapline::Error::SpecNotMet { .. })));
+    /// assert!(deep.kaiser_fixed::<i32, 512>()?.measured.meets());
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn kaiser_fixed<T: FixedPoint, const N: usize>(
+        &self,
+    ) -> Result<FixedDesign<R, T, N>, Error> {
+        let mut longest = 0;
+        for margin in [0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 9.0] {
+            let margin = R::from_f64(margin);
+            let stricter = Spec {
+                stopband_attenuation_db: self.stopband_attenuation_db + margin,
+                ..*self
+            };
+            let float = stricter.kaiser::<N>()?;
+            longest = longest.max(float.taps.len());
+            let mut taps: heapless::Vec<T, N> = heapless::Vec::new();
+            if taps.resize(float.taps.len(), T::ZERO).is_err() {
+                return Err(Error::OutputLength {
+                    expected: float.taps.len(),
+                    found: N,
+                });
+            }
+            let quantized = super::quantize(&float.taps, &mut taps)?;
+            let measured = self.measure(&taps)?;
+            if measured.meets() {
+                return Ok(FixedDesign {
+                    float,
+                    taps,
+                    quantized,
+                    measured,
+                    margin_db: margin,
+                });
+            }
+        }
+        Err(Error::SpecNotMet { taps: longest })
     }
 }
