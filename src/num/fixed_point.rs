@@ -105,6 +105,18 @@ pub(crate) fn finish_fixed_i64<S: FixedPoint>(
     (S::from_raw(clamped), clamped != q)
 }
 
+/// The exact product of a tap and a sample. Two 16-bit operands multiply in 32 bits (|p| ≤ 2^30
+/// fits): a Cortex-M0 has a 32-bit multiply but no 64-bit one, and would otherwise call a
+/// library routine per tap. The condition is a constant, so only one arm is compiled in.
+#[inline(always)]
+fn product<T: FixedPoint, S: FixedPoint>(tap: T, x: S) -> i64 {
+    if T::BITS <= 16 && S::BITS <= 16 {
+        i64::from((tap.raw() as i32) * (x.raw() as i32))
+    } else {
+        tap.raw() * x.raw()
+    }
+}
+
 macro_rules! fixed_mul_acc {
     ($( [$($gen:tt)*] $s:ty => $t:ty; )*) => {$(
         impl<$($gen)*> MulAcc<$t> for $s {
@@ -114,7 +126,7 @@ macro_rules! fixed_mul_acc {
             #[inline(always)]
             fn mul_acc(acc: i64, tap: $t, x: Self) -> i64 {
                 // |tap·x| ≤ 2^62: exact in i64. Wrapping add: see the trait contract.
-                acc.wrapping_add(tap.raw() * x.raw())
+                acc.wrapping_add(product(tap, x))
             }
 
             #[inline(always)]

@@ -292,7 +292,11 @@ pub fn check_fixed_fir<S, T, W, const N: usize>(
         .iter()
         .map(|&t| i128::from(t) * i128::from(if t > 0 { x_min } else { x_max }))
         .sum();
-    let acc_max = if acc_bits >= 128 { i128::MAX } else { (1i128 << (acc_bits - 1)) - 1 };
+    let acc_max = if acc_bits >= 128 {
+        i128::MAX
+    } else {
+        (1i128 << (acc_bits - 1)) - 1
+    };
     let overflows = worst_high > acc_max || worst_low < -acc_max - 1;
 
     let mut fir = match Fir::<S, N, T, W>::with_accumulator(&taps) {
@@ -305,7 +309,10 @@ pub fn check_fixed_fir<S, T, W, const N: usize>(
         }
         Err(e) => {
             assert_eq!(e, Error::AccumulatorOverflow);
-            assert!(overflows, "rejected taps whose worst case fits {acc_bits} bits: {h:?}");
+            assert!(
+                overflows,
+                "rejected taps whose worst case fits {acc_bits} bits: {h:?}"
+            );
             return;
         }
     };

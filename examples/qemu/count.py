@@ -1,0 +1,99 @@
+#!/usr/bin/env python3
+"""Counts the instructions an emulated Cortex-M core executes inside each measured region.
+
+Reads a QEMU execution trace on stdin (`-singlestep -d exec,nochain`: one line per executed
+instruction, the guest PC in the second field of the bracket) and the ELF symbol table (via
+`readelf`). A region starts when the PC reaches the entry of a `cost_*` function and ends when
+control is back in `bench_main`, so instructions of anything the function calls are included.
+
+Usage: qemu-system-arm ... -singlestep -d exec,nochain 2>&1 >stdout.txt | count.py ELF BOARD [STDOUT]
+Prints a Markdown table: instructions per tap per output for block and per-sample calls, the
+code size of every function the region ran, and the filter state size that the firmware printed
+over semihosting (lines "state TYPE TAPS BYTES" in STDOUT).
+"""
+
+import bisect
+import re
+import subprocess
+import sys
+
+
+def symbols(elf):
+    out = subprocess.run(["readelf", "-sW", elf], check=True, capture_output=True, text=True).stdout
+    table = {}
+    for line in out.splitlines():
+        parts = line.split()
+        if len(parts) >= 8 and parts[3] == "FUNC":
+            addr = int(parts[1], 16) & ~1  # Thumb symbols carry bit 0
+            table[parts[7]] = (addr, addr + int(parts[2]))
+    return table
+
+
+def main():
+    elf, board = sys.argv[1], sys.argv[2]
+    states_file = sys.argv[3] if len(sys.argv) > 3 else None
+    table = symbols(elf)
+    regions = {addr: name for name, (addr, _) in table.items() if name.startswith("cost_")}
+    caller = table["bench_main"]
+    starts = sorted((a, e, n) for n, (a, e) in table.items() if e > a)
+    first = [a for a, _, _ in starts]
+    counts = {name: 0 for name in regions.values()}
+    calls = {name: 0 for name in regions.values()}
+    visited = {name: set() for name in regions.values()}
+    current = None
+    last_fn = None
+    pc_field = re.compile(rb"\[[0-9a-f]+/([0-9a-f]+)/")
+    for line in sys.stdin.buffer:
+        m = pc_field.search(line)
+        if not m:
+            continue
+        pc = int(m.group(1), 16)
+        if current is None:
+            name = regions.get(pc)
+            if name is None:
+                continue
+            current = name
+            calls[name] += 1
+        elif caller[0] <= pc < caller[1]:
+            current = None
+            continue
+        counts[current] += 1
+        # Which function this instruction belongs to, for the code-size column.
+        if last_fn is None or not (last_fn[0] <= pc < last_fn[1]):
+            i = bisect.bisect_right(first, pc) - 1
+            last_fn = starts[i] if i >= 0 and pc < starts[i][1] else None
+        if last_fn is not None:
+            visited[current].add(last_fn)
+
+    states = {}
+    if states_file:
+        for line in open(states_file, encoding="utf-8"):
+            parts = line.split()
+            if len(parts) == 4 and parts[0] == "state":
+                states[(parts[1], parts[2])] = parts[3]
+
+    print(f"### {board}\n")
+    print("| samples | taps | block 64: instr/tap/output | block 256 | per sample (call included) "
+          "| per-sample ÷ block 64 | .text bytes run | filter RAM bytes |")
+    print("|---|---|---|---|---|---|---|---|")
+    rows = {}
+    for name in regions.values():
+        _, ty, taps, mode = name.split("_")
+        rows.setdefault((ty, int(taps)), {})[mode] = name
+    for (ty, taps) in sorted(rows, key=lambda k: (["i16", "acc32", "i32", "f32"].index(k[0]), k[1])):
+        modes = rows[(ty, taps)]
+        per = {}
+        for mode, outputs in (("block64", 64), ("block256", 256), ("sample", 1)):
+            name = modes[mode]
+            per[mode] = counts[name] / (calls[name] * outputs * taps)
+        text = sum(e - a for (a, e, _) in set().union(*(visited[m] for m in modes.values())))
+        label = {"i16": "Q15 (i16), i64 acc", "acc32": "Q15, proven i32 acc",
+                 "i32": "Q31 (i32)", "f32": "f32"}[ty]
+        print(f"| {label} | {taps} | {per['block64']:.2f} | {per['block256']:.2f} | "
+              f"{per['sample']:.2f} | {per['sample'] / per['block64']:.2f} | {text} | "
+              f"{states.get((ty, str(taps)), '?')} |")
+    print()
+
+
+if __name__ == "__main__":
+    main()

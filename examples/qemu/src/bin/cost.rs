@@ -1,0 +1,131 @@
+//! The kernels the instruction-count harness measures (`./measure`). Each `cost_*` function is
+//! one measured region: `bench_main` calls it, and the harness counts every instruction the
+//! emulated core executes from the function's entry until control is back in `bench_main`.
+//! Sizes of each filter state are printed over semihosting.
+#![no_std]
+#![no_main]
+
+#[path = "../scenario.rs"]
+#[allow(dead_code)]
+mod scenario;
+
+use core::hint::black_box;
+use cortex_m_rt::entry;
+use cortex_m_semihosting::{debug, hprintln};
+use scenario::*;
+use tapline::Fir;
+use tapline::headroom::{Acc32, InputRange, ProvenTaps};
+
+#[panic_handler]
+fn panic(_: &core::panic::PanicInfo) -> ! {
+    debug::exit(debug::EXIT_FAILURE);
+    loop {
+        core::hint::spin_loop();
+    }
+}
+
+macro_rules! costs {
+    ($( $name:ident, $ty:ident, $n:literal, $taps:expr, $input:ident ; )*) => {$(
+        paste_costs!($name, $ty, $n, Fir<'static, $ty, $n>, {
+            static TAPS: [$ty; $n] = $taps;
+            match Fir::<$ty, $n>::new(&TAPS) {
+                Ok(f) => f,
+                Err(_) => return false,
+            }
+        }, $input);
+    )*};
+}
+
+/// Q15 with the proven 32-bit accumulator: the table and the full 16-bit input range.
+macro_rules! proven_costs {
+    ($( $proof:ident, $n:literal ; )*) => {$(
+        struct $proof;
+        impl ProvenTaps for $proof {
+            const TAPS: &'static [i16] = &q15_taps::<$n>();
+            const INPUT: InputRange = InputRange::FULL;
+        }
+        paste_costs!(acc32, i16, $n, Fir<'static, i16, $n, i16, Acc32<$proof>>, Fir::proven(), q15);
+    )*};
+}
+
+macro_rules! paste_costs {
+    ($name:ident, $ty:ident, $n:literal, $fir:ty, $make:expr, $input:ident) => {{
+        let mut fir: $fir = $make;
+        hprintln!("state {} {} {}", stringify!($name), $n, core::mem::size_of::<$fir>());
+        let mut block = [0 as $ty; 256];
+        for (i, v) in block.iter_mut().enumerate() {
+            *v = $input(i) as $ty;
+        }
+        #[inline(never)]
+        #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_block64"))]
+        fn block64(fir: &mut $fir, b: &mut [$ty; 64]) {
+            fir.process_in_place(b);
+        }
+        #[inline(never)]
+        #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_block256"))]
+        fn block256(fir: &mut $fir, b: &mut [$ty; 256]) {
+            fir.process_in_place(b);
+        }
+        #[inline(never)]
+        #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_sample"))]
+        fn sample(fir: &mut $fir, x: $ty) -> $ty {
+            fir.push(x)
+        }
+        // Warm the history so every measured output sums N real samples.
+        let mut warm = block;
+        block256(&mut fir, &mut warm);
+        let mut b64 = [0 as $ty; 64];
+        b64.copy_from_slice(&block[..64]);
+        block64(black_box(&mut fir), black_box(&mut b64));
+        block256(black_box(&mut fir), black_box(&mut block));
+        for i in 0..64 {
+            black_box(sample(black_box(&mut fir), black_box(block[i])));
+        }
+    }};
+}
+
+fn q15(n: usize) -> i16 {
+    adc_q15(n)
+}
+fn q31(n: usize) -> i32 {
+    adc_q31(n)
+}
+fn f32s(n: usize) -> f32 {
+    adc_f32(n)
+}
+
+/// The caller of every measured region (the harness stops counting when control returns here).
+#[inline(never)]
+#[unsafe(no_mangle)]
+fn bench_main() -> bool {
+    costs! {
+        i16, i16, 16, q15_taps::<16>(), q15;
+        i16, i16, 64, q15_taps::<64>(), q15;
+        i16, i16, 256, q15_taps::<256>(), q15;
+        i32, i32, 16, q31_taps::<16>(), q31;
+        i32, i32, 64, q31_taps::<64>(), q31;
+        i32, i32, 256, q31_taps::<256>(), q31;
+        f32, f32, 16, f32_taps::<16>(), f32s;
+        f32, f32, 64, f32_taps::<64>(), f32s;
+        f32, f32, 256, f32_taps::<256>(), f32s;
+    }
+    proven_costs! {
+        Proof16, 16;
+        Proof64, 64;
+        Proof256, 256;
+    }
+    true
+}
+
+#[entry]
+fn main() -> ! {
+    let ok = bench_main();
+    debug::exit(if ok {
+        debug::EXIT_SUCCESS
+    } else {
+        debug::EXIT_FAILURE
+    });
+    loop {
+        core::hint::spin_loop();
+    }
+}
