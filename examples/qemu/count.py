@@ -29,7 +29,35 @@ def symbols(elf):
     return table
 
 
+def sequence(elf, pattern):
+    """Instructions of every call into a function whose name matches `pattern`, in call order
+    (a region ends when control is back in `bench_main`)."""
+    table = symbols(elf)
+    entries = {addr for name, (addr, _) in table.items() if re.search(pattern, name)}
+    caller = table["bench_main"]
+    counts = []
+    inside = False
+    pc_field = re.compile(rb"\[[0-9a-f]+/([0-9a-f]+)/")
+    for line in sys.stdin.buffer:
+        m = pc_field.search(line)
+        if not m:
+            continue
+        pc = int(m.group(1), 16)
+        if not inside:
+            if pc in entries:
+                inside = True
+                counts.append(1)
+        elif caller[0] <= pc < caller[1]:
+            inside = False
+        else:
+            counts[-1] += 1
+    return counts
+
+
 def main():
+    if len(sys.argv) > 2 and sys.argv[2] == "--sequence":
+        print(" ".join(str(c) for c in sequence(sys.argv[1], sys.argv[3])))
+        return
     elf, board = sys.argv[1], sys.argv[2]
     states_file = sys.argv[3] if len(sys.argv) > 3 else None
     table = symbols(elf)

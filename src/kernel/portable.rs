@@ -48,18 +48,21 @@ pub fn dot_reversed<S: MulAcc<T, W>, T: Sample, W>(
     let xs = xs.get(xs.len() - len..).unwrap_or(&[]);
     let taps = taps.get(..len).unwrap_or(&[]);
     // Four taps per step against four samples read from the end: fixed-size arrays give the
-    // compiler constant offsets (no index arithmetic, no bounds checks) on every target. The
-    // accumulation order stays ascending in tap index, as in the plain loop.
-    let tap_quads = taps.chunks_exact(4);
-    let x_quads = xs.rchunks_exact(4);
-    let (tap_rest, x_rest) = (tap_quads.remainder(), x_quads.remainder());
-    for (h, x) in tap_quads.zip(x_quads) {
-        if let ([h0, h1, h2, h3], [x0, x1, x2, x3]) = (h, x) {
-            acc = S::mul_acc(acc, *h0, *x3);
-            acc = S::mul_acc(acc, *h1, *x2);
-            acc = S::mul_acc(acc, *h2, *x1);
-            acc = S::mul_acc(acc, *h3, *x0);
-        }
+    // compiler constant offsets (no index arithmetic, no bounds checks, no division) on every
+    // target. The accumulation order stays ascending in tap index, as in the plain loop.
+    let (mut tap_rest, mut x_rest) = (taps, xs);
+    while let (Some((h, taps_after)), Some((xs_before, x))) = (
+        tap_rest.split_first_chunk::<4>(),
+        x_rest.split_last_chunk::<4>(),
+    ) {
+        let [h0, h1, h2, h3] = *h;
+        let [x0, x1, x2, x3] = *x;
+        acc = S::mul_acc(acc, h0, x3);
+        acc = S::mul_acc(acc, h1, x2);
+        acc = S::mul_acc(acc, h2, x1);
+        acc = S::mul_acc(acc, h3, x0);
+        tap_rest = taps_after;
+        x_rest = xs_before;
     }
     for (&h, &x) in tap_rest.iter().zip(x_rest.iter().rev()) {
         acc = S::mul_acc(acc, h, x);

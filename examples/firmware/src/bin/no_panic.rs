@@ -11,7 +11,10 @@ use core::hint::black_box;
 use fixed::types::{I1F15, I4F12};
 use tapline::headroom::{Acc32, AccTrace, measure_deviation};
 use tapline::num::Acc128;
-use tapline::{Fir, GroupDelay, Ring, Rounding, Span, convolve, correlate};
+use tapline::{
+    CicDecimator, Decimator, Fir, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir,
+    MovingAverage, MultiChannelFir, Ring, Rounding, Span, convolve, correlate,
+};
 use tapline_firmware::{SMOOTH_64, Smooth64};
 
 #[panic_handler]
@@ -125,6 +128,8 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
     black_box(conv);
     black_box(conv_f);
 
+    exercise_structures(&mut block_i16, &mut block_i32, len, rounding);
+
     let mut ring = Ring::<i32, 5>::new(0);
     for &v in &block_i32[..len] {
         ring.push(v);
@@ -132,6 +137,48 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
     black_box(ring.latest());
     black_box(ring.as_slices());
     black_box(GroupDelay::of(&F32_TAPS));
+}
+
+static HALF_BAND: [i16; 7] = [-1024, 0, 9216, 16384, 9216, 0, -1024];
+
+/// The structures beside `Fir`: every per-sample and block call on opaque input.
+fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rounding: Rounding) {
+    if let Ok(f) = LinearPhaseFir::<i16, 13>::new(black_box(&Q15_TAPS)) {
+        let mut f = f.with_rounding(rounding);
+        black_box(f.push(b16[0]));
+        f.process_in_place(&mut b16[..len]);
+        let mut out = [0i16; 64];
+        let _ = f.process(&b16[..len], &mut out[..len]);
+    }
+    if let Ok(mut f) = LinearPhaseFir::<i32, 7>::new(black_box(&Q31_TAPS)) {
+        f.process_in_place(&mut b32[..len]);
+    }
+    if let Ok(mut f) = Decimator::<i16, 13, 4>::new(black_box(&Q15_TAPS)) {
+        black_box(f.push(b16[1]));
+        let mut out = [0i16; 64];
+        let _ = black_box(f.process(&b16[..len], &mut out));
+        black_box(f.process_in_place(&mut b16[..len]));
+    }
+    if let Ok(mut f) = Interpolator::<i16, 13, 3>::new(black_box(&Q15_TAPS)) {
+        black_box(f.push(b16[2]));
+        let mut out = [0i16; 192];
+        let _ = black_box(f.process(&b16[..len], &mut out));
+    }
+    if let Ok(mut f) = HalfBandDecimator::<i16, 7>::new(black_box(&HALF_BAND)) {
+        black_box(f.push(b16[3]));
+        black_box(f.process_in_place(&mut b16[..len]));
+    }
+    let mut cic = CicDecimator::<i16, 3, 8, 1>::new();
+    black_box(cic.push(b16[4]));
+    black_box(cic.push_full(b16[5]));
+    black_box(cic.process_in_place(&mut b16[..len]));
+    let mut avg = MovingAverage::<i16, 20>::new();
+    black_box(avg.push(b16[6]));
+    avg.process_in_place(&mut b16[..len]);
+    if let Ok(mut f) = MultiChannelFir::<i16, 13, 4>::new(black_box(&Q15_TAPS)) {
+        black_box(f.push([b16[7], b16[8], b16[9], b16[10]]));
+        let _ = f.process_in_place(&mut b16[..len]);
+    }
 }
 
 #[unsafe(no_mangle)]
