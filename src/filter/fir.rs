@@ -172,9 +172,10 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W> Fir<'a, S, N, T, W> {
         let acc = self.accumulate();
         inspect(acc);
         let (y, saturated) = S::finish(acc, self.rounding);
-        self.saturations = self
-            .saturations
-            .saturating_add(u32::from(saturated) + u32::from(clamped));
+        self.saturations = super::shared::count_event(
+            super::shared::count_event(self.saturations, saturated),
+            clamped,
+        );
         y
     }
 

@@ -48,7 +48,7 @@ impl OutputStep {
 
     #[inline(always)]
     fn count(&mut self, event: bool) {
-        self.saturations = self.saturations.saturating_add(u32::from(event));
+        self.saturations = count_event(self.saturations, event);
     }
 
     pub(crate) const fn rounding(&self) -> Rounding {
@@ -285,4 +285,12 @@ pub(crate) fn map_block<S: Copy, Y>(
         *y = v;
     }
     Ok(())
+}
+
+/// `counter + event`, stopping at `u32::MAX`, without a branch: the carry of the addition
+/// becomes an all-ones mask, so every sample costs the same on any core.
+#[inline(always)]
+pub(crate) fn count_event(counter: u32, event: bool) -> u32 {
+    let (sum, carried) = counter.overflowing_add(u32::from(event));
+    sum | 0u32.wrapping_sub(u32::from(carried))
 }

@@ -32,6 +32,9 @@ pub trait FixedPoint: Sample {
     /// From raw bits. **Overflow:** values outside `RAW_MIN..=RAW_MAX` saturate to the nearer
     /// limit.
     fn from_raw(raw: i64) -> Self;
+    /// From the low `BITS` bits of `raw` (two's-complement truncation, no clamp): for values
+    /// already known to be in range, without the cost of checking again.
+    fn from_raw_truncating(raw: i64) -> Self;
 }
 
 macro_rules! fixed_point {
@@ -42,6 +45,10 @@ macro_rules! fixed_point {
             const FRAC: u32 = $frac;
             #[inline(always)]
             fn raw(self) -> i64 { i64::from($get(self)) }
+            #[inline(always)]
+            fn from_raw_truncating(raw: i64) -> Self {
+                $make(raw as $prim)
+            }
             #[inline(always)]
             fn from_raw(raw: i64) -> Self {
                 // In range after clamping, so the narrowing is lossless.
@@ -101,8 +108,25 @@ pub(crate) fn finish_fixed_i64<S: FixedPoint>(
     rounding: Rounding,
 ) -> (S, bool) {
     let q = rounding.shift(acc, tap_frac);
-    let clamped = q.clamp(S::RAW_MIN, S::RAW_MAX);
-    (S::from_raw(clamped), clamped != q)
+    if tap_frac == 0 {
+        // Integer taps: q may reach the ends of i64, where the masks below could wrap.
+        let clamped = q.clamp(S::RAW_MIN, S::RAW_MAX);
+        return (S::from_raw(clamped), clamped != q);
+    }
+    let (value, clamped) = clamp_masked(q, S::RAW_MIN, S::RAW_MAX);
+    (S::from_raw_truncating(value), clamped)
+}
+
+/// `q` clamped to `[min, max]` with masks instead of compare-and-branch, so every value costs
+/// the same instructions even on cores without conditional execution (Cortex-M0); the flag says
+/// whether clamping acted. Needs |q| ≤ 2^62 and |min|, |max| ≤ 2^62 (no subtraction wraps).
+#[inline(always)]
+pub(crate) fn clamp_masked(q: i64, min: i64, max: i64) -> (i64, bool) {
+    let below = q.wrapping_sub(min) >> 63; // all ones when q < min
+    let above = max.wrapping_sub(q) >> 63; // all ones when q > max
+    let out = below | above;
+    let value = (q & !out) | (min & below) | (max & above);
+    (value, out & 1 == 1)
 }
 
 /// The exact product of a tap and a sample. Two 16-bit operands multiply in 32 bits (|p| ≤ 2^30
