@@ -292,5 +292,6 @@ pub(crate) fn map_block<S: Copy, Y>(
 #[inline(always)]
 pub(crate) fn count_event(counter: u32, event: bool) -> u32 {
     let (sum, carried) = counter.overflowing_add(u32::from(event));
-    sum | 0u32.wrapping_sub(u32::from(carried))
+    // Opaque to the optimiser, which would otherwise select on the carry with a branch.
+    sum | core::hint::black_box(0u32.wrapping_sub(u32::from(carried)))
 }

@@ -122,8 +122,11 @@ pub(crate) fn finish_fixed_i64<S: FixedPoint>(
 /// whether clamping acted. Needs |q| ≤ 2^62 and |min|, |max| ≤ 2^62 (no subtraction wraps).
 #[inline(always)]
 pub(crate) fn clamp_masked(q: i64, min: i64, max: i64) -> (i64, bool) {
-    let below = q.wrapping_sub(min) >> 63; // all ones when q < min
-    let above = max.wrapping_sub(q) >> 63; // all ones when q > max
+    // `black_box` hides the masks' origin from the optimiser, which would otherwise turn
+    // them back into compare-and-select — a branch on cores without conditional execution.
+    // It changes no value, only keeps the cost the same for every input.
+    let below = core::hint::black_box(q.wrapping_sub(min) >> 63); // all ones when q < min
+    let above = core::hint::black_box(max.wrapping_sub(q) >> 63); // all ones when q > max
     let out = below | above;
     let value = (q & !out) | (min & below) | (max & above);
     (value, out & 1 == 1)
