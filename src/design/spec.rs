@@ -87,6 +87,7 @@ pub struct Spec<R> {
 
 /// A Kaiser-window design that meets its [`Spec`], with what went into it and what it measures.
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct KaiserDesign<R, const N: usize> {
     /// The taps, symmetric, gain 1 at the passband reference (DC, fs/2 or the band centre).
     pub taps: heapless::Vec<R, N>,
@@ -107,6 +108,7 @@ pub struct KaiserDesign<R, const N: usize> {
 
 /// A Kaiser design whose **quantized** taps meet the [`Spec`], from [`Spec::kaiser_fixed`].
 #[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct FixedDesign<R, T, const N: usize> {
     /// The float design the fixed-point taps were quantized from.
     pub float: KaiserDesign<R, N>,
