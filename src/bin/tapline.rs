@@ -1,0 +1,125 @@
+//! The tapline host tool: design taps from a spec, write them as Rust source, and check the
+//! headroom of a tap table before it goes into firmware.
+//!
+//! Built only with the `cli` feature (`cargo run --features cli -- --help`); the library stays
+//! `no_std` without it. Exit status: 0 done (and, for `check`, safe), 1 the taps can overflow,
+//! 2 bad input or a file that could not be read or written (one line on stderr naming the file,
+//! line and column, and no output file left behind).
+
+#[path = "tapline/atomic.rs"]
+mod atomic;
+#[path = "tapline/check.rs"]
+mod check;
+#[path = "tapline/failure.rs"]
+mod failure;
+#[path = "tapline/report.rs"]
+mod report;
+#[path = "tapline/table.rs"]
+mod table;
+#[path = "tapline/taps.rs"]
+mod taps;
+
+use clap::{Args, Parser, Subcommand};
+use failure::Failure;
+use std::path::PathBuf;
+use std::process::ExitCode;
+use taps::{Adc, AlignArg, Format, RoundingArg, Written};
+
+/// Design FIR taps, write them as Rust source, and prove their headroom.
+#[derive(Parser)]
+#[command(name = "tapline", version, about)]
+struct Cli {
+    /// Print the result as one JSON object instead of text.
+    #[arg(long, global = true)]
+    json: bool,
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Headroom of an existing tap table: can any ADC input overflow the accumulator or
+    /// saturate the output? Exit 0 if safe, 1 if it can overflow, 2 on bad input.
+    Check(CheckArgs),
+}
+
+/// The ADC that feeds the filter.
+#[derive(Args, Clone)]
+struct AdcArgs {
+    /// ADC resolution in bits (default: the whole sample word).
+    #[arg(long, value_name = "BITS")]
+    adc_bits: Option<u32>,
+    /// Where the ADC's bits sit in the sample word.
+    #[arg(long, value_enum, default_value = "left")]
+    align: AlignArg,
+}
+
+impl AdcArgs {
+    fn adc(&self) -> Adc {
+        Adc {
+            bits: self.adc_bits,
+            align: self.align,
+        }
+    }
+}
+
+#[derive(Args)]
+struct CheckArgs {
+    /// Tap table: plain text or CSV, one or more numbers per line, `#` starts a comment line.
+    table: PathBuf,
+    /// Tap format.
+    #[arg(long, value_enum, default_value = "q15")]
+    format: Format,
+    /// How the numbers are written: raw integer codes, or real values to quantize.
+    #[arg(long, value_enum, default_value = "codes")]
+    written: Written,
+    #[command(flatten)]
+    adc: AdcArgs,
+    /// Output rounding of the filter.
+    #[arg(long, value_enum, default_value = "half-up")]
+    rounding: RoundingArg,
+    /// Write the input sequences that drive the accumulator to its bounds to this CSV file.
+    #[arg(long, value_name = "FILE")]
+    worst_case: Option<PathBuf>,
+}
+
+fn run(cli: &Cli) -> Result<report::Report, Failure> {
+    match &cli.command {
+        Command::Check(a) => check::run(&check::Request {
+            table: a.table.clone(),
+            format: a.format,
+            written: a.written,
+            adc: a.adc.adc(),
+            rounding: a.rounding.into(),
+            worst_case: a.worst_case.clone(),
+        }),
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let status = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(status);
+        }
+    };
+    match run(&cli) {
+        Ok(report) => {
+            if cli.json {
+                println!("{}", report.json);
+            } else {
+                print!("{}", report.text);
+            }
+            ExitCode::from(report.status)
+        }
+        Err(failure) => {
+            if cli.json {
+                println!("{}", serde_json::json!({ "error": failure.to_string() }));
+            }
+            eprintln!("error: {failure}");
+            ExitCode::from(2)
+        }
+    }
+}
