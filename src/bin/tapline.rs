@@ -10,10 +10,14 @@
 mod atomic;
 #[path = "tapline/check.rs"]
 mod check;
+#[path = "tapline/design.rs"]
+mod design;
 #[path = "tapline/failure.rs"]
 mod failure;
 #[path = "tapline/report.rs"]
 mod report;
+#[path = "tapline/spec.rs"]
+mod spec;
 #[path = "tapline/table.rs"]
 mod table;
 #[path = "tapline/taps.rs"]
@@ -38,6 +42,12 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, and report the
+    /// length, group delay, measured ripple and attenuation, and the headroom verdict.
+    Design(DesignArgs),
+    /// Design as `design` does, then write the taps as a Rust source file (a `pub static` array
+    /// whose doc comment records the spec, the figures and the command).
+    Emit(EmitArgs),
     /// Headroom of an existing tap table: can any ADC input overflow the accumulator or
     /// saturate the output? Exit 0 if safe, 1 if it can overflow, 2 on bad input.
     Check(CheckArgs),
@@ -64,6 +74,24 @@ impl AdcArgs {
 }
 
 #[derive(Args)]
+struct DesignArgs {
+    #[command(flatten)]
+    spec: spec::SpecArgs,
+}
+
+#[derive(Args)]
+struct EmitArgs {
+    #[command(flatten)]
+    spec: spec::SpecArgs,
+    /// The Rust source file to write (atomically: whole or not at all).
+    #[arg(long, value_name = "FILE")]
+    out: PathBuf,
+    /// Name of the static array.
+    #[arg(long, default_value = "TAPS")]
+    name: String,
+}
+
+#[derive(Args)]
 struct CheckArgs {
     /// Tap table: plain text or CSV, one or more numbers per line, `#` starts a comment line.
     table: PathBuf,
@@ -85,6 +113,12 @@ struct CheckArgs {
 
 fn run(cli: &Cli) -> Result<report::Report, Failure> {
     match &cli.command {
+        Command::Design(a) => Ok(design::report(&design::design(a.spec.chosen()?)?)),
+        Command::Emit(a) => {
+            design::check_name(&a.name)?;
+            let designed = design::design(a.spec.chosen()?)?;
+            design::emit(&designed, &a.out, &a.name, &command_line())
+        }
         Command::Check(a) => check::run(&check::Request {
             table: a.table.clone(),
             format: a.format,
@@ -94,6 +128,20 @@ fn run(cli: &Cli) -> Result<report::Report, Failure> {
             worst_case: a.worst_case.clone(),
         }),
     }
+}
+
+/// The command as typed, for the record in emitted files (arguments with spaces or quotes are
+/// single-quoted).
+fn command_line() -> String {
+    let mut words = vec![String::from("tapline")];
+    for arg in std::env::args().skip(1) {
+        if arg.is_empty() || arg.contains(|c: char| c.is_whitespace() || "'\"$`\\".contains(c)) {
+            words.push(format!("'{}'", arg.replace('\'', "'\\''")));
+        } else {
+            words.push(arg);
+        }
+    }
+    words.join(" ")
 }
 
 fn main() -> ExitCode {
