@@ -721,3 +721,185 @@ fn a_write_that_fails_leaves_no_temporary_file() {
     assert_eq!(status(&out), 2);
     assert_files(dir.path(), &["taken"]);
 }
+
+// ---- replay --------------------------------------------------------------------------------
+
+/// Half-up rounding of sum / 2^15 and saturation to i16, from the definitions.
+fn q15_model(taps: &[i64], xs: &[i64]) -> (Vec<i64>, usize) {
+    let mut saturated = 0;
+    let ys = (0..xs.len())
+        .map(|n| {
+            let acc: i64 = taps
+                .iter()
+                .enumerate()
+                .filter(|(k, _)| *k <= n)
+                .map(|(k, h)| h * xs[n - k])
+                .sum();
+            let y = (acc + (1 << 14)).div_euclid(1 << 15);
+            if !(-32768..=32767).contains(&y) {
+                saturated += 1;
+            }
+            y.clamp(-32768, 32767)
+        })
+        .collect();
+    (ys, saturated)
+}
+
+fn csv_column(text: &str, column: usize) -> Vec<i64> {
+    text.lines()
+        .skip(1)
+        .filter_map(|l| l.split(',').nth(column).and_then(|v| v.parse().ok()))
+        .collect()
+}
+
+#[test]
+fn replay_matches_the_exact_model_and_writes_the_output() {
+    let dir = scratch();
+    let taps = [5000i64, -12000, 30000, 7];
+    write(
+        dir.path(),
+        "taps.txt",
+        &taps
+            .iter()
+            .map(|t| t.to_string())
+            .collect::<Vec<_>>()
+            .join("\n"),
+    );
+    let xs: Vec<i64> = (0..300).map(|n| (n * 7919 % 4001) - 2000).collect();
+    let capture: String = std::iter::once("when,code\n".to_string())
+        .chain(xs.iter().enumerate().map(|(n, x)| format!("{n},{x}\n")))
+        .collect();
+    write(dir.path(), "capture.csv", &capture);
+    let out = tool(
+        &[
+            "--json",
+            "replay",
+            "capture.csv",
+            "--taps",
+            "taps.txt",
+            "--column",
+            "2",
+            "--header",
+            "--adc-bits",
+            "12",
+            "--align",
+            "right",
+            "--out",
+            "filtered.csv",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["samples"], 300);
+    assert_eq!(v["saturated"], 0);
+    // Codes as taps: the reference has the same taps, so only the output rounding differs.
+    assert!(v["max_error_lsb"].as_f64().is_some_and(|e| e <= 0.5), "{v}");
+    assert_eq!(v["error_bound_lsb"], 0.5);
+    let written = fs::read_to_string(dir.path().join("filtered.csv")).unwrap_or_default();
+    assert_eq!(csv_column(&written, 1), xs);
+    assert_eq!(csv_column(&written, 2), q15_model(&taps, &xs).0);
+    assert_files(dir.path(), &["capture.csv", "filtered.csv", "taps.txt"]);
+}
+
+#[test]
+fn replay_counts_saturation_and_exits_1() {
+    let dir = scratch();
+    write(dir.path(), "loud.txt", "32767\n32767\n");
+    let xs = [30000i64, 30000, -30000, -30000, 100];
+    write(
+        dir.path(),
+        "capture.txt",
+        &xs.iter().map(|x| format!("{x}\n")).collect::<String>(),
+    );
+    let out = tool(
+        &["--json", "replay", "capture.txt", "--taps", "loud.txt"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
+    let (_, saturated) = q15_model(&[32767, 32767], &xs);
+    // 30000 + 30000 and −30000 − 30000 leave the word; the sums around them do not.
+    assert_eq!(saturated, 2);
+    assert_eq!(json(&out)["saturated"], saturated);
+}
+
+#[test]
+fn replay_of_the_invented_capture_stays_within_the_bound() {
+    let out = tool(
+        &[
+            "--json",
+            "replay",
+            "examples/tool/silo_capture.csv",
+            "--spec",
+            SILO_SPEC,
+            "--column",
+            "2",
+            "--header",
+        ],
+        &repo(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["samples"], 2000);
+    assert_eq!(v["within_bound"], true);
+    assert!(v["accumulator_bits_used"].as_u64() <= v["accumulator_bits_worst_case"].as_u64());
+    assert!(v["snr_db"].as_f64().is_some_and(|s| s > 40.0), "{v}");
+}
+
+#[test]
+fn replay_bad_captures_fail_with_place_and_write_nothing() {
+    let cases: &[(&str, &str, &str)] = &[
+        (
+            "ragged.csv",
+            "0,1\n1,2\n2\n",
+            "ragged.csv:3:2: expected 2 field(s) as on line 1",
+        ),
+        (
+            "word.csv",
+            "0,1\n1,x2\n",
+            "word.csv:2:3: expected a sample code in -2048..=2047",
+        ),
+        (
+            "range.csv",
+            "0,1\n1,3000\n",
+            "range.csv:2:3: expected a sample code in -2048..=2047",
+        ),
+        (
+            "empty.csv",
+            "# nothing here\n",
+            "empty.csv:1:1: expected at least one row",
+        ),
+        (
+            "narrow.csv",
+            "5\n6\n",
+            "narrow.csv:1:1: expected at least 2 field(s)",
+        ),
+    ];
+    for (name, text, message) in cases {
+        let dir = scratch();
+        write(dir.path(), "taps.txt", "16384 16384\n");
+        write(dir.path(), name, text);
+        let out = tool(
+            &[
+                "replay",
+                name,
+                "--taps",
+                "taps.txt",
+                "--column",
+                "2",
+                "--adc-bits",
+                "12",
+                "--align",
+                "right",
+                "--out",
+                "out.csv",
+            ],
+            dir.path(),
+        );
+        assert_eq!(status(&out), 2, "{name}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{name}: {err}");
+        assert_files(dir.path(), &["taps.txt", name]);
+    }
+}

@@ -1,5 +1,6 @@
-//! The tapline host tool: design taps from a spec, write them as Rust source, and check the
-//! headroom of a tap table before it goes into firmware.
+//! The tapline host tool: design taps from a spec, write them as Rust source, check the
+//! headroom of a tap table before it goes into firmware, and replay a recorded capture through
+//! the bit-exact fixed-point filter against float64.
 //!
 //! Built only with the `cli` feature (`cargo run --features cli -- --help`); the library stays
 //! `no_std` without it. Exit status: 0 done (and, for `check`, safe), 1 the taps can overflow,
@@ -14,6 +15,8 @@ mod check;
 mod design;
 #[path = "tapline/failure.rs"]
 mod failure;
+#[path = "tapline/replay.rs"]
+mod replay;
 #[path = "tapline/report.rs"]
 mod report;
 #[path = "tapline/spec.rs"]
@@ -48,6 +51,10 @@ enum Command {
     /// Design as `design` does, then write the taps as a Rust source file (a `pub static` array
     /// whose doc comment records the spec, the figures and the command).
     Emit(EmitArgs),
+    /// Stream a recorded capture (CSV of raw sample codes) through the bit-exact fixed-point
+    /// filter and a float64 reference: largest difference in LSB against the error bound, SNR,
+    /// saturations, accumulator bits used. Exit 0, or 1 if an output saturated or left the bound.
+    Replay(ReplayArgs),
     /// Headroom of an existing tap table: can any ADC input overflow the accumulator or
     /// saturate the output? Exit 0 if safe, 1 if it can overflow, 2 on bad input.
     Check(CheckArgs),
@@ -92,6 +99,94 @@ struct EmitArgs {
 }
 
 #[derive(Args)]
+struct ReplayArgs {
+    /// The capture: CSV or plain text, one sample per row (or one column of several).
+    capture: PathBuf,
+    /// The taps, as a table (see `check`).
+    #[arg(
+        long,
+        value_name = "FILE",
+        required_unless_present = "spec",
+        conflicts_with = "spec"
+    )]
+    taps: Option<PathBuf>,
+    /// Or design the taps from this TOML spec (its format and ADC are used).
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["format", "written", "adc_bits"])]
+    spec: Option<PathBuf>,
+    /// Tap format of the table.
+    #[arg(long, value_enum)]
+    format: Option<Format>,
+    /// How the table's numbers are written.
+    #[arg(long, value_enum)]
+    written: Option<Written>,
+    #[command(flatten)]
+    adc: AdcArgs,
+    /// Output rounding of the filter.
+    #[arg(long, value_enum, default_value = "half-up")]
+    rounding: RoundingArg,
+    /// Which column holds the samples (1 = first).
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..))]
+    column: u32,
+    /// The first row is a header: skip it.
+    #[arg(long)]
+    header: bool,
+    /// Write sample, input, fixed, reference and error (LSB) per row to this CSV file.
+    #[arg(long, value_name = "FILE")]
+    out: Option<PathBuf>,
+}
+
+fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
+    let (codes, ideal, format, adc) = match (&a.spec, &a.taps) {
+        (Some(path), _) => {
+            let chosen = spec::SpecArgs::from_file(path)?;
+            let (format, adc) = (chosen.format, chosen.adc);
+            let designed = design::design(chosen)?;
+            match designed.taps {
+                design::Taps::Fixed(codes) => (codes, designed.ideal, format, adc),
+                design::Taps::Float(_) => {
+                    return Err(Failure::file(
+                        path,
+                        "replay compares fixed point with float64: expected format q15 or q31",
+                    ));
+                }
+            }
+        }
+        (None, Some(path)) => {
+            let format = a.format.unwrap_or(Format::Q15);
+            let table = taps::read(path, format, a.written.unwrap_or(Written::Codes))?;
+            let ideal = match table.ideal {
+                Some(ideal) => ideal,
+                None => replay::codes_as_reals(&table.codes, format),
+            };
+            (table.codes, ideal, format, a.adc.adc())
+        }
+        (None, None) => {
+            return Err(Failure::argument(
+                "--taps",
+                "expected a tap table or --spec",
+            ));
+        }
+    };
+    if format == Format::F32 {
+        return Err(Failure::argument(
+            "--format",
+            "replay compares fixed point with float64: expected q15 or q31",
+        ));
+    }
+    Ok(replay::Request {
+        capture: a.capture.clone(),
+        column: a.column as usize,
+        header: a.header,
+        codes,
+        ideal,
+        format,
+        adc,
+        rounding: a.rounding.into(),
+        out: a.out.clone(),
+    })
+}
+
+#[derive(Args)]
 struct CheckArgs {
     /// Tap table: plain text or CSV, one or more numbers per line, `#` starts a comment line.
     table: PathBuf,
@@ -119,6 +214,7 @@ fn run(cli: &Cli) -> Result<report::Report, Failure> {
             let designed = design::design(a.spec.chosen()?)?;
             design::emit(&designed, &a.out, &a.name, &command_line())
         }
+        Command::Replay(a) => replay::run(&replay_request(a)?),
         Command::Check(a) => check::run(&check::Request {
             table: a.table.clone(),
             format: a.format,

@@ -32,3 +32,64 @@ pub fn write(path: &Path, contents: &[u8]) -> Result<(), Failure> {
     }
     Ok(())
 }
+
+/// A file written in pieces that appears at its path only on [`commit`](Streaming::commit);
+/// dropped without a commit (an error on the way), it leaves nothing behind.
+pub struct Streaming {
+    path: PathBuf,
+    temp: PathBuf,
+    out: Option<std::io::BufWriter<fs::File>>,
+}
+
+impl Streaming {
+    pub fn create(path: &Path) -> Result<Streaming, Failure> {
+        let name = path
+            .file_name()
+            .ok_or_else(|| Failure::file(path, "expected a file name, found a directory"))?;
+        let dir = match path.parent() {
+            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+            _ => PathBuf::from("."),
+        };
+        let mut temp_name = std::ffi::OsString::from(".");
+        temp_name.push(name);
+        temp_name.push(format!(".partial-{}", std::process::id()));
+        let temp = dir.join(temp_name);
+        let file = fs::File::create(&temp)
+            .map_err(|e| Failure::file(path, format!("could not write: {e}")))?;
+        Ok(Streaming {
+            path: path.to_path_buf(),
+            temp,
+            out: Some(std::io::BufWriter::new(file)),
+        })
+    }
+
+    pub fn write_line(&mut self, line: &str) -> Result<(), Failure> {
+        let path = &self.path;
+        match &mut self.out {
+            Some(out) => writeln!(out, "{line}")
+                .map_err(|e| Failure::file(path, format!("could not write: {e}"))),
+            None => Err(Failure::file(path, "already closed")),
+        }
+    }
+
+    pub fn commit(mut self) -> Result<(), Failure> {
+        let path = self.path.clone();
+        let fail = |e: std::io::Error| Failure::file(&path, format!("could not write: {e}"));
+        let out = self
+            .out
+            .take()
+            .ok_or_else(|| Failure::file(&path, "already closed"))?;
+        let file = out.into_inner().map_err(|e| fail(e.into_error()))?;
+        file.sync_all().map_err(fail)?;
+        fs::rename(&self.temp, &self.path).map_err(fail)
+    }
+}
+
+impl Drop for Streaming {
+    fn drop(&mut self) {
+        // Still open: the work did not finish, so the partial file goes.
+        if self.out.take().is_some() {
+            let _ = fs::remove_file(&self.temp);
+        }
+    }
+}

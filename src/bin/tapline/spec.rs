@@ -143,6 +143,11 @@ struct SpecFile {
 }
 
 impl SpecArgs {
+    /// The spec a TOML file describes, checked.
+    pub fn from_file(path: &Path) -> Result<Chosen, Failure> {
+        from_file(path)
+    }
+
     /// The spec the flags or the file describe, checked.
     pub fn chosen(&self) -> Result<Chosen, Failure> {
         match &self.spec {

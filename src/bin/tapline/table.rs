@@ -64,7 +64,7 @@ pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
     Ok(rows)
 }
 
-fn split(raw: &str, line: usize) -> Vec<Field> {
+pub fn split(raw: &str, line: usize) -> Vec<Field> {
     let comma = raw.contains(',');
     let mut fields = Vec::new();
     let mut current = String::new();
