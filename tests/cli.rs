@@ -903,3 +903,54 @@ fn replay_bad_captures_fail_with_place_and_write_nothing() {
         assert_files(dir.path(), &["taps.txt", name]);
     }
 }
+
+// ---- plot ----------------------------------------------------------------------------------
+
+#[test]
+fn plot_draws_the_response_and_one_marker_per_tap() {
+    let dir = scratch();
+    let spec = repo().join(SILO_SPEC).display().to_string();
+    let out = tool(
+        &["--json", "plot", "--spec", &spec, "--out", "silo.svg"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    assert_eq!(json(&out)["file"], "silo.svg");
+    let svg = fs::read_to_string(dir.path().join("silo.svg")).unwrap_or_default();
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    assert!(svg.contains("magnitude: float64 and Q15 taps"), "no title");
+    assert!(svg.contains("passband, 0..5 Hz"), "no passband zoom");
+    assert!(svg.contains("impulse response"), "no impulse response");
+    assert_eq!(svg.matches("<circle").count(), library_q15().len());
+    // Two bands shaded (pass and stop) as filled rectangles beyond the background.
+    assert!(svg.matches("<rect").count() >= 3);
+    assert_files(dir.path(), &["silo.svg"]);
+}
+
+#[test]
+fn plot_of_a_bad_spec_writes_nothing() {
+    let dir = scratch();
+    let out = tool(
+        &[
+            "plot",
+            "--band",
+            "bandstop",
+            "--rate",
+            "1000",
+            "--edges",
+            "10,20,30",
+            "--attenuation",
+            "40",
+            "--out",
+            "bad.svg",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert!(
+        stderr(&out).contains("--edges: expected 4 edges"),
+        "{}",
+        stderr(&out)
+    );
+    assert_files(dir.path(), &[]);
+}

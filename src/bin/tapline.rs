@@ -1,10 +1,10 @@
 //! The tapline host tool: design taps from a spec, write them as Rust source, check the
 //! headroom of a tap table before it goes into firmware, and replay a recorded capture through
-//! the bit-exact fixed-point filter against float64.
+//! the bit-exact fixed-point filter against float64, and plot a design's response as SVG.
 //!
 //! Built only with the `cli` feature (`cargo run --features cli -- --help`); the library stays
-//! `no_std` without it. Exit status: 0 done (and, for `check`, safe), 1 the taps can overflow,
-//! 2 bad input or a file that could not be read or written (one line on stderr naming the file,
+//! `no_std` without it. Exit status: 0 done (and, for `check`, safe); 1 the taps can overflow
+//! (`check`) or an output saturated or left the error bound (`replay`); 2 bad input or a file that could not be read or written (one line on stderr naming the file,
 //! line and column, and no output file left behind).
 
 #[path = "tapline/atomic.rs"]
@@ -15,6 +15,8 @@ mod check;
 mod design;
 #[path = "tapline/failure.rs"]
 mod failure;
+#[path = "tapline/plot.rs"]
+mod plot;
 #[path = "tapline/replay.rs"]
 mod replay;
 #[path = "tapline/report.rs"]
@@ -51,6 +53,9 @@ enum Command {
     /// Design as `design` does, then write the taps as a Rust source file (a `pub static` array
     /// whose doc comment records the spec, the figures and the command).
     Emit(EmitArgs),
+    /// Design as `design` does, then draw an SVG: magnitude in dB of the float64 and quantized
+    /// taps with the bands shaded, the passband close up, and the impulse response.
+    Plot(PlotArgs),
     /// Stream a recorded capture (CSV of raw sample codes) through the bit-exact fixed-point
     /// filter and a float64 reference: largest difference in LSB against the error bound, SNR,
     /// saturations, accumulator bits used. Exit 0, or 1 if an output saturated or left the bound.
@@ -96,6 +101,15 @@ struct EmitArgs {
     /// Name of the static array.
     #[arg(long, default_value = "TAPS")]
     name: String,
+}
+
+#[derive(Args)]
+struct PlotArgs {
+    #[command(flatten)]
+    spec: spec::SpecArgs,
+    /// The SVG file to write (atomically).
+    #[arg(long, value_name = "FILE")]
+    out: PathBuf,
 }
 
 #[derive(Args)]
@@ -214,6 +228,7 @@ fn run(cli: &Cli) -> Result<report::Report, Failure> {
             let designed = design::design(a.spec.chosen()?)?;
             design::emit(&designed, &a.out, &a.name, &command_line())
         }
+        Command::Plot(a) => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
         Command::Replay(a) => replay::run(&replay_request(a)?),
         Command::Check(a) => check::run(&check::Request {
             table: a.table.clone(),
