@@ -954,3 +954,37 @@ fn plot_of_a_bad_spec_writes_nothing() {
     );
     assert_files(dir.path(), &[]);
 }
+
+#[test]
+fn usage_mistakes_are_one_line_and_exit_2() {
+    let dir = scratch();
+    for args in [
+        &["check", "t.txt", "--format", "q7"][..],
+        &["frobnicate"][..],
+        &[
+            "design", "--band", "lowpass", "--rate", "1000", "--edges", "5,50",
+        ][..],
+        &["replay", "capture.csv"][..],
+    ] {
+        let out = tool(args, dir.path());
+        assert_eq!(status(&out), 2, "{args:?}");
+        assert_eq!(
+            stderr(&out).lines().count(),
+            1,
+            "{args:?}: {}",
+            stderr(&out)
+        );
+    }
+    let out = tool(&["--json", "check", "t.txt", "--format", "q7"], dir.path());
+    assert!(
+        json(&out)["error"]
+            .as_str()
+            .is_some_and(|e| e.contains("q7"))
+    );
+    assert_files(dir.path(), &[]);
+    let help = tool(&["--help"], dir.path());
+    assert_eq!(status(&help), 0);
+    for command in ["design", "emit", "check", "replay", "plot"] {
+        assert!(stdout(&help).contains(command), "{command}");
+    }
+}

@@ -36,7 +36,11 @@ use taps::{Adc, AlignArg, Format, RoundingArg, Written};
 
 /// Design FIR taps, write them as Rust source, and prove their headroom.
 #[derive(Parser)]
-#[command(name = "tapline", version, about)]
+#[command(
+    name = "tapline",
+    version,
+    about = "Design FIR taps from a spec, write them as Rust source, prove their headroom, replay captures and plot responses."
+)]
 struct Cli {
     /// Print the result as one JSON object instead of text.
     #[arg(long, global = true)]
@@ -255,13 +259,34 @@ fn command_line() -> String {
     words.join(" ")
 }
 
+/// clap's several-line usage error as one line: the message and its hints, without the usage
+/// block (`--help` shows that).
+fn one_line(rendered: &str) -> String {
+    rendered
+        .lines()
+        .map(str::trim)
+        .filter(|l| !l.is_empty() && !l.starts_with("Usage:") && !l.starts_with("For more"))
+        .map(|l| l.trim_start_matches("error: "))
+        .collect::<Vec<_>>()
+        .join("; ")
+}
+
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
-        Err(e) => {
-            let status = if e.use_stderr() { 2 } else { 0 };
+        Err(e) if !e.use_stderr() => {
+            // --help and --version.
             let _ = e.print();
-            return ExitCode::from(status);
+            return ExitCode::SUCCESS;
+        }
+        Err(e) => {
+            // A usage mistake is bad input too: one line, exit 2.
+            let line = one_line(&e.render().to_string());
+            if std::env::args().any(|a| a == "--json") {
+                println!("{}", serde_json::json!({ "error": line }));
+            }
+            eprintln!("error: {line}");
+            return ExitCode::from(2);
         }
     };
     match run(&cli) {
