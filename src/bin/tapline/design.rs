@@ -1,0 +1,318 @@
+//! `design` and `emit`: a spec → Kaiser taps that meet it in the chosen format → the measured
+//! figures and the headroom proof; `emit` also writes the taps as a Rust source file.
+
+use crate::atomic;
+use crate::failure::Failure;
+use crate::report::{self, Report};
+use crate::spec::Chosen;
+use crate::taps::{Codes, Format};
+use serde_json::{Value, json};
+use std::fmt::Write;
+use std::path::Path;
+use tapline::design::Measured;
+use tapline::headroom::{ErrorBound, Headroom};
+use tapline::{Error, Rounding};
+
+/// The longest design the tool makes (the library's designs are fixed-capacity).
+pub const MAX_TAPS: usize = 2048;
+
+/// A finished design.
+pub struct Designed {
+    pub chosen: Chosen,
+    /// The float design the taps come from.
+    pub ideal: Vec<f64>,
+    pub float_measured: Measured<f64>,
+    pub estimated_len: usize,
+    pub beta: f64,
+    pub margin_db: f64,
+    /// The taps in the chosen format.
+    pub taps: Taps,
+    pub measured: Measured<f64>,
+    /// Fixed point only: the headroom and the error bound against the float taps.
+    pub proof: Option<(Headroom, ErrorBound)>,
+}
+
+pub enum Taps {
+    Fixed(Codes),
+    Float(Vec<f32>),
+}
+
+fn library(e: Error) -> Failure {
+    match e {
+        Error::OutputLength { expected, .. } => Failure::plain(format!(
+            "design: the spec needs {expected} taps, more than the tool's {MAX_TAPS}: expected a wider transition band or less attenuation"
+        )),
+        Error::SpecNotMet { taps, .. } => Failure::plain(format!(
+            "design: no Kaiser design of up to {taps} taps meets the spec in this format: expected a coarser spec or a wider format"
+        )),
+        other => Failure::plain(format!("design: {other}")),
+    }
+}
+
+pub fn design(chosen: Chosen) -> Result<Designed, Failure> {
+    let spec = chosen.spec;
+    match chosen.format {
+        Format::F32 => {
+            let float = spec.kaiser::<MAX_TAPS>().map_err(library)?;
+            let taps: Vec<f32> = float.taps.iter().map(|&h| h as f32).collect();
+            let measured = spec.measure(&taps).map_err(library)?;
+            Ok(Designed {
+                ideal: float.taps.to_vec(),
+                float_measured: float.measured,
+                estimated_len: float.estimated_len,
+                beta: float.beta,
+                margin_db: 0.0,
+                taps: Taps::Float(taps),
+                measured,
+                proof: None,
+                chosen,
+            })
+        }
+        Format::Q15 | Format::Q31 => {
+            let (float, codes, measured, margin_db) = if chosen.format == Format::Q15 {
+                let d = spec.kaiser_fixed::<i16, MAX_TAPS>().map_err(library)?;
+                (
+                    d.float,
+                    Codes::Q15(d.taps.to_vec()),
+                    d.measured,
+                    d.margin_db,
+                )
+            } else {
+                let d = spec.kaiser_fixed::<i32, MAX_TAPS>().map_err(library)?;
+                (
+                    d.float,
+                    Codes::Q31(d.taps.to_vec()),
+                    d.measured,
+                    d.margin_db,
+                )
+            };
+            let input = chosen
+                .adc
+                .range(chosen.format.word_bits())
+                .map_err(library)?;
+            let headroom = codes.headroom(input);
+            let bound = codes
+                .error_bound(&float.taps, input, Rounding::HalfUp)
+                .map_err(library)?;
+            Ok(Designed {
+                ideal: float.taps.to_vec(),
+                float_measured: float.measured,
+                estimated_len: float.estimated_len,
+                beta: float.beta,
+                margin_db,
+                taps: Taps::Fixed(codes),
+                measured,
+                proof: Some((headroom, bound)),
+                chosen,
+            })
+        }
+    }
+}
+
+impl Designed {
+    pub fn len(&self) -> usize {
+        self.ideal.len()
+    }
+
+    /// Linear phase: (N − 1)/2 samples.
+    pub fn group_delay_samples(&self) -> f64 {
+        (self.len() as f64 - 1.0) / 2.0
+    }
+
+    fn meets(m: &Measured<f64>) -> &'static str {
+        if m.meets() {
+            "meets the spec"
+        } else {
+            "misses the spec"
+        }
+    }
+
+    /// The human-readable summary, one fact a line.
+    pub fn summary(&self) -> String {
+        let c = &self.chosen;
+        let s = &c.spec;
+        let mut t = String::new();
+        let edges: Vec<String> = c.edges.iter().map(|e| format!("{e}")).collect();
+        let _ = writeln!(
+            t,
+            "spec: {} at {} Hz, edges {} Hz, ripple <= {} dB, attenuation >= {} dB, {} taps",
+            c.band.name(),
+            s.sample_rate_hz,
+            edges.join(", "),
+            s.passband_ripple_db,
+            s.stopband_attenuation_db,
+            c.format.name()
+        );
+        let _ = writeln!(
+            t,
+            "length: {} taps (Kaiser estimate {}, beta {:.4}, {} dB extra attenuation asked for quantization)",
+            self.len(),
+            self.estimated_len,
+            self.beta,
+            self.margin_db
+        );
+        let gd = self.group_delay_samples();
+        let _ = writeln!(
+            t,
+            "group delay: {gd} samples = {:.3} ms (linear phase)",
+            gd / s.sample_rate_hz * 1000.0
+        );
+        let f = &self.float_measured;
+        let _ = writeln!(
+            t,
+            "float64 taps: ripple {:.4} dB, attenuation {:.2} dB -> {}",
+            f.passband_ripple_db,
+            f.stopband_attenuation_db,
+            Self::meets(f)
+        );
+        let m = &self.measured;
+        let _ = writeln!(
+            t,
+            "{} taps: ripple {:.4} dB, attenuation {:.2} dB (worst at {:.2} Hz) -> {}",
+            c.format.name(),
+            m.passband_ripple_db,
+            m.stopband_attenuation_db,
+            m.stopband.max_at_hz,
+            Self::meets(m)
+        );
+        match &self.proof {
+            Some((h, b)) => {
+                let _ = writeln!(t, "headroom ({}):", c.adc.describe(c.format.word_bits()));
+                t.push_str(&report::headroom_text(h, Rounding::HalfUp));
+                let _ = writeln!(
+                    t,
+                    "error bound vs float64: {:.2} LSB (taps) + {:.2} LSB (rounding) = {:.2} LSB",
+                    b.quantization_lsb(),
+                    b.rounding_lsb(),
+                    b.lsb()
+                );
+            }
+            None => {
+                let _ = writeln!(
+                    t,
+                    "headroom: float taps cannot overflow; NaN and infinities propagate"
+                );
+            }
+        }
+        t
+    }
+
+    pub fn json(&self, command: &str) -> Value {
+        let c = &self.chosen;
+        let s = &c.spec;
+        let measured = |m: &Measured<f64>| {
+            json!({
+                "ripple_db": m.passband_ripple_db,
+                "attenuation_db": m.stopband_attenuation_db,
+                "worst_stopband_hz": m.stopband.max_at_hz,
+                "meets_spec": m.meets(),
+            })
+        };
+        let taps: Value = match &self.taps {
+            Taps::Fixed(codes) => json!(codes.raw()),
+            Taps::Float(v) => json!(v.iter().map(|&x| f64::from(x)).collect::<Vec<f64>>()),
+        };
+        json!({
+            "command": command,
+            "spec": {
+                "band": c.band.name(),
+                "sample_rate_hz": s.sample_rate_hz,
+                "edges_hz": c.edges,
+                "ripple_db": s.passband_ripple_db,
+                "attenuation_db": s.stopband_attenuation_db,
+                "format": c.format.name(),
+                "adc_bits": c.adc.bits,
+            },
+            "taps": self.len(),
+            "kaiser_estimate": self.estimated_len,
+            "beta": self.beta,
+            "margin_db": self.margin_db,
+            "group_delay_samples": self.group_delay_samples(),
+            "float": measured(&self.float_measured),
+            "quantized": measured(&self.measured),
+            "headroom": self.proof.as_ref().map(|(h, _)| report::headroom_json(h, Rounding::HalfUp)),
+            "error_bound_lsb": self.proof.as_ref().map(|(_, b)| b.lsb()),
+            "safe": self.proof.as_ref().is_none_or(|(h, _)| report::is_safe(h, Rounding::HalfUp)),
+            "values": taps,
+        })
+    }
+
+    /// The taps as a Rust source file: one `pub static` array with a doc comment that records
+    /// the spec, the measured figures, the headroom proof and the command that made it.
+    pub fn rust_source(&self, name: &str, command: &str) -> String {
+        let mut src = String::new();
+        src.push_str("// Written by the tapline host tool. Change the spec and run the command below again\n");
+        src.push_str("// rather than editing the numbers by hand.\n\n");
+        let (ty, what) = match &self.taps {
+            Taps::Fixed(Codes::Q15(_)) => ("i16", "Q15 codes (15 fractional bits)"),
+            Taps::Fixed(Codes::Q31(_)) => ("i32", "Q31 codes (31 fractional bits)"),
+            Taps::Float(_) => ("f32", "f32 values"),
+        };
+        let _ = writeln!(
+            src,
+            "/// {} {} FIR taps as {what}.",
+            self.len(),
+            self.chosen.band.name()
+        );
+        src.push_str("///\n/// ```text\n");
+        for line in self.summary().lines() {
+            let _ = writeln!(src, "/// {line}");
+        }
+        src.push_str("/// ```\n///\n");
+        let _ = writeln!(src, "/// Generated by: `{command}`");
+        let _ = writeln!(src, "pub static {name}: [{ty}; {}] = [", self.len());
+        let items: Vec<String> = match &self.taps {
+            Taps::Fixed(codes) => codes.raw().iter().map(|v| v.to_string()).collect(),
+            // `{:?}` prints the shortest text that reads back as the same f32.
+            Taps::Float(v) => v.iter().map(|x| format!("{x:?}")).collect(),
+        };
+        for chunk in items.chunks(8) {
+            let _ = writeln!(src, "    {},", chunk.join(", "));
+        }
+        src.push_str("];\n");
+        src
+    }
+}
+
+pub fn report(d: &Designed) -> Report {
+    Report {
+        text: d.summary(),
+        json: d.json("design"),
+        status: 0,
+    }
+}
+
+/// A Rust identifier for a `static`: upper-case letters, digits and underscores.
+pub fn check_name(name: &str) -> Result<(), Failure> {
+    let ok = name
+        .chars()
+        .next()
+        .is_some_and(|c| c.is_ascii_uppercase() || c == '_')
+        && name
+            .chars()
+            .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '_');
+    if ok {
+        Ok(())
+    } else {
+        Err(Failure::argument(
+            "--name",
+            format!("expected an upper-case Rust identifier like SMOOTH_TAPS, found {name:?}"),
+        ))
+    }
+}
+
+pub fn emit(d: &Designed, out: &Path, name: &str, command: &str) -> Result<Report, Failure> {
+    atomic::write(out, d.rust_source(name, command).as_bytes())?;
+    let mut text = d.summary();
+    let _ = writeln!(text, "wrote {} ({name})", out.display());
+    let mut json = d.json("emit");
+    if let Some(map) = json.as_object_mut() {
+        map.insert("file".into(), json!(out.display().to_string()));
+        map.insert("name".into(), json!(name));
+    }
+    Ok(Report {
+        text,
+        json,
+        status: 0,
+    })
+}

@@ -1,0 +1,143 @@
+//! Reading numbers from plain text or CSV: one or more fields per line, separated by commas
+//! (CSV) or by spaces and tabs (plain text); blank lines and lines starting with `#` are skipped.
+//! Every data row must have as many fields as the first one.
+
+use crate::failure::Failure;
+use std::path::Path;
+
+/// One field: its text and where it starts (1-based line and column).
+#[derive(Debug, Clone)]
+pub struct Field {
+    pub text: String,
+    pub line: usize,
+    pub column: usize,
+}
+
+/// The data rows of a file, checked to be rectangular and non-empty.
+pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
+    let bytes =
+        std::fs::read(path).map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let (line, column) = {
+            let good = e.utf8_error().valid_up_to();
+            let prefix = String::from_utf8_lossy(e.as_bytes().get(..good).unwrap_or(&[]));
+            crate::failure::line_column(&prefix, good)
+        };
+        Failure::at(path, line, column, "expected UTF-8 text")
+    })?;
+    let mut rows: Vec<Vec<Field>> = Vec::new();
+    for (index, raw) in text.lines().enumerate() {
+        let line = index + 1;
+        let trimmed = raw.trim();
+        if trimmed.is_empty() || trimmed.starts_with('#') {
+            continue;
+        }
+        let fields = split(raw, line);
+        if let Some(first) = rows.first() {
+            if fields.len() != first.len() {
+                let column = fields
+                    .get(first.len())
+                    .map_or(raw.chars().count() + 1, |f| f.column);
+                let first_line = first.first().map_or(0, |f| f.line);
+                return Err(Failure::at(
+                    path,
+                    line,
+                    column,
+                    format!(
+                        "expected {} field(s) as on line {first_line}, found {}",
+                        first.len(),
+                        fields.len()
+                    ),
+                ));
+            }
+        }
+        rows.push(fields);
+    }
+    if rows.is_empty() {
+        return Err(Failure::at(
+            path,
+            1,
+            1,
+            "expected at least one row of numbers, found none",
+        ));
+    }
+    Ok(rows)
+}
+
+pub fn split(raw: &str, line: usize) -> Vec<Field> {
+    let comma = raw.contains(',');
+    let mut fields = Vec::new();
+    let mut current = String::new();
+    let mut start: Option<usize> = None;
+    let mut column = 0;
+    let mut flush = |current: &mut String, start: &mut Option<usize>, at: usize| {
+        fields.push(Field {
+            text: current.trim().to_string(),
+            line,
+            column: start.take().unwrap_or(at),
+        });
+        current.clear();
+    };
+    for c in raw.chars() {
+        column += 1;
+        let separator = if comma {
+            c == ','
+        } else {
+            c == ' ' || c == '\t'
+        };
+        if separator {
+            if comma || start.is_some() {
+                flush(&mut current, &mut start, column);
+            }
+        } else {
+            if start.is_none() && !c.is_whitespace() {
+                start = Some(column);
+            }
+            current.push(c);
+        }
+    }
+    if comma || start.is_some() {
+        flush(&mut current, &mut start, column + 1);
+    }
+    fields
+}
+
+/// A finite real number.
+pub fn real(path: &Path, field: &Field) -> Result<f64, Failure> {
+    match field.text.parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        Ok(_) => Err(Failure::at(
+            path,
+            field.line,
+            field.column,
+            format!("expected a finite number, found {:?}", field.text),
+        )),
+        Err(_) => Err(Failure::at(
+            path,
+            field.line,
+            field.column,
+            format!("expected a number, found {:?}", field.text),
+        )),
+    }
+}
+
+/// An integer in `min..=max`.
+pub fn integer(path: &Path, field: &Field, min: i64, max: i64) -> Result<i64, Failure> {
+    let v = field.text.parse::<i64>().map_err(|_| {
+        Failure::at(
+            path,
+            field.line,
+            field.column,
+            format!("expected an integer code, found {:?}", field.text),
+        )
+    })?;
+    if !(min..=max).contains(&v) {
+        return Err(Failure::at(
+            path,
+            field.line,
+            field.column,
+            format!("expected an integer code in {min}..={max}, found {v}"),
+        ));
+    }
+    Ok(v)
+}

@@ -1,0 +1,230 @@
+//! Tap tables in the formats the tool knows: Q15 and Q31 codes (fixed point, with a headroom
+//! analysis) and f32 (float; no headroom to prove).
+
+use crate::failure::Failure;
+use crate::table;
+use clap::ValueEnum;
+use std::path::Path;
+use tapline::headroom::{Align, ErrorBound, Headroom, InputRange};
+use tapline::{Error, Rounding};
+
+/// The number format of a tap table.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// 16-bit codes, 15 fractional bits, on 16-bit samples.
+    Q15,
+    /// 32-bit codes, 31 fractional bits, on 32-bit samples.
+    Q31,
+    /// 32-bit float.
+    F32,
+}
+
+impl Format {
+    pub fn name(self) -> &'static str {
+        match self {
+            Format::Q15 => "Q15",
+            Format::Q31 => "Q31",
+            Format::F32 => "f32",
+        }
+    }
+
+    /// The sample word the taps filter (16 for Q15, 32 otherwise).
+    pub fn word_bits(self) -> u32 {
+        match self {
+            Format::Q15 => 16,
+            Format::Q31 | Format::F32 => 32,
+        }
+    }
+}
+
+/// How the numbers in a table are written.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Written {
+    /// Raw integer codes of the format.
+    Codes,
+    /// Real values (quantized to the format with an exact DC gain).
+    Real,
+}
+
+/// Output rounding, as the filters offer it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum RoundingArg {
+    HalfUp,
+    Truncate,
+    HalfEven,
+}
+
+impl From<RoundingArg> for Rounding {
+    fn from(r: RoundingArg) -> Rounding {
+        match r {
+            RoundingArg::HalfUp => Rounding::HalfUp,
+            RoundingArg::Truncate => Rounding::Truncate,
+            RoundingArg::HalfEven => Rounding::HalfEven,
+        }
+    }
+}
+
+/// Where an ADC's bits sit in the sample word.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum AlignArg {
+    Left,
+    Right,
+}
+
+/// The ADC feeding the filter: `bits` (None: the whole sample word) and alignment.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Adc {
+    pub bits: Option<u32>,
+    pub align: AlignArg,
+}
+
+impl Adc {
+    pub fn range(self, word_bits: u32) -> Result<InputRange, Error> {
+        match self.bits {
+            None => Ok(InputRange::FULL.within_word(word_bits)),
+            Some(bits) => InputRange::adc(
+                bits,
+                match self.align {
+                    AlignArg::Left => Align::Left,
+                    AlignArg::Right => Align::Right,
+                },
+                word_bits,
+            ),
+        }
+    }
+
+    pub fn describe(self, word_bits: u32) -> String {
+        match self.bits {
+            None => format!("full {word_bits}-bit sample word"),
+            Some(bits) => format!(
+                "{bits}-bit ADC, {} in {word_bits} bits",
+                match self.align {
+                    AlignArg::Left => "left-aligned",
+                    AlignArg::Right => "right-aligned",
+                }
+            ),
+        }
+    }
+}
+
+/// Fixed-point taps (raw codes) with, when known, the real values they stand for.
+#[derive(Debug, Clone)]
+pub enum Codes {
+    Q15(Vec<i16>),
+    Q31(Vec<i32>),
+}
+
+impl Codes {
+    pub fn raw(&self) -> Vec<i64> {
+        match self {
+            Codes::Q15(c) => c.iter().map(|&v| i64::from(v)).collect(),
+            Codes::Q31(c) => c.iter().map(|&v| i64::from(v)).collect(),
+        }
+    }
+
+    pub fn len(&self) -> usize {
+        match self {
+            Codes::Q15(c) => c.len(),
+            Codes::Q31(c) => c.len(),
+        }
+    }
+
+    pub fn headroom(&self, input: InputRange) -> Headroom {
+        match self {
+            Codes::Q15(c) => Headroom::q15(c, input),
+            Codes::Q31(c) => Headroom::q31(c, input),
+        }
+    }
+
+    pub fn error_bound(
+        &self,
+        ideal: &[f64],
+        input: InputRange,
+        rounding: Rounding,
+    ) -> Result<ErrorBound, Error> {
+        match self {
+            Codes::Q15(c) => ErrorBound::new::<i16, _>(ideal, c, input, rounding),
+            Codes::Q31(c) => ErrorBound::new::<i32, _>(ideal, c, input, rounding),
+        }
+    }
+
+    /// Quantizes real taps into `format` (Q15 or Q31).
+    pub fn quantize(ideal: &[f64], format: Format) -> Result<Codes, Error> {
+        Ok(match format {
+            Format::Q15 => {
+                let mut q = vec![0i16; ideal.len()];
+                tapline::design::quantize(ideal, &mut q)?;
+                Codes::Q15(q)
+            }
+            Format::Q31 | Format::F32 => {
+                let mut q = vec![0i32; ideal.len()];
+                tapline::design::quantize(ideal, &mut q)?;
+                Codes::Q31(q)
+            }
+        })
+    }
+}
+
+/// A table read from a file: the codes, and the real values if the file held real values.
+pub struct Table {
+    pub codes: Codes,
+    pub ideal: Option<Vec<f64>>,
+}
+
+/// Reads a tap table: all fields in row order.
+pub fn read(path: &Path, format: Format, written: Written) -> Result<Table, Failure> {
+    let rows = table::read_rows(path)?;
+    let fields: Vec<&table::Field> = rows.iter().flatten().collect();
+    match written {
+        Written::Codes => {
+            let (min, max) = match format {
+                Format::Q15 => (i64::from(i16::MIN), i64::from(i16::MAX)),
+                Format::Q31 => (i64::from(i32::MIN), i64::from(i32::MAX)),
+                Format::F32 => {
+                    return Err(Failure::argument(
+                        "--written",
+                        "f32 tables hold real values: expected --written real",
+                    ));
+                }
+            };
+            let raw = fields
+                .iter()
+                .map(|f| table::integer(path, f, min, max))
+                .collect::<Result<Vec<i64>, Failure>>()?;
+            // The range check above makes the narrowing exact.
+            let codes = match format {
+                Format::Q15 => Codes::Q15(raw.iter().map(|&v| v as i16).collect()),
+                _ => Codes::Q31(raw.iter().map(|&v| v as i32).collect()),
+            };
+            Ok(Table { codes, ideal: None })
+        }
+        Written::Real => {
+            let ideal = fields
+                .iter()
+                .map(|f| table::real(path, f))
+                .collect::<Result<Vec<f64>, Failure>>()?;
+            if format == Format::F32 {
+                return Err(Failure::argument(
+                    "--format",
+                    "headroom applies to fixed-point taps: expected q15 or q31",
+                ));
+            }
+            let codes = Codes::quantize(&ideal, format).map_err(|e| match e {
+                Error::TapOutOfRange { index, .. } => {
+                    let (line, column) = fields.get(index).map_or((1, 1), |f| (f.line, f.column));
+                    Failure::at(
+                        path,
+                        line,
+                        column,
+                        format!("expected a tap value in [-1, 1) for {}", format.name()),
+                    )
+                }
+                other => Failure::file(path, other),
+            })?;
+            Ok(Table {
+                codes,
+                ideal: Some(ideal),
+            })
+        }
+    }
+}

@@ -1,0 +1,990 @@
+//! The host tool, run as a user runs it: good and bad inputs, exit statuses, text and JSON
+//! output, and files that appear whole or not at all. Built with `--features cli`.
+//!
+//! Expected figures are worked out here from the definitions (products of extreme codes and
+//! taps), not copied from the tool's output.
+
+use serde_json::Value;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn tool(args: &[&str], dir: &Path) -> Output {
+    let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
+        .args(args)
+        .current_dir(dir)
+        .output();
+    match out {
+        Ok(out) => out,
+        Err(e) => panic!("could not run the tool: {e}"),
+    }
+}
+
+fn status(out: &Output) -> i32 {
+    out.status.code().unwrap_or(-1)
+}
+
+fn stdout(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+fn stderr(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+fn json(out: &Output) -> Value {
+    serde_json::from_slice(&out.stdout)
+        .unwrap_or_else(|e| panic!("not JSON ({e}): {}", stdout(out)))
+}
+
+fn scratch() -> tempfile::TempDir {
+    tempfile::tempdir().unwrap_or_else(|e| panic!("no temp dir: {e}"))
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let path = dir.join(name);
+    fs::write(&path, text).unwrap_or_else(|e| panic!("could not write {name}: {e}"));
+    path
+}
+
+/// The directory holds exactly these file names (nothing partial, no temporary files).
+fn assert_files(dir: &Path, expected: &[&str]) {
+    let mut names: Vec<String> = fs::read_dir(dir)
+        .unwrap_or_else(|e| panic!("{e}"))
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    let mut expected: Vec<String> = expected.iter().map(|s| s.to_string()).collect();
+    expected.sort();
+    assert_eq!(names, expected);
+}
+
+#[test]
+fn check_smoother_on_a_12_bit_adc_is_safe() {
+    let dir = scratch();
+    write(
+        dir.path(),
+        "smooth.txt",
+        "# 1/4 1/2 1/4\n8192\n16384\n8192\n",
+    );
+    let out = tool(
+        &[
+            "--json",
+            "check",
+            "smooth.txt",
+            "--adc-bits",
+            "12",
+            "--align",
+            "left",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    let h = &v["headroom"];
+    // 12-bit left-aligned codes: -32768..=32752 (step 16). Taps all positive, Σ = 32768.
+    assert_eq!(h["input_min"], -32768);
+    assert_eq!(h["input_max"], 32752);
+    assert_eq!(h["accumulator_min"], -32768i64 * 32768);
+    assert_eq!(h["accumulator_max"], 32752i64 * 32768);
+    assert_eq!(h["accumulator_bits"], 31);
+    assert_eq!(h["guard_bits"], 0);
+    assert_eq!(h["output_can_saturate"], false);
+    assert_eq!(v["safe"], true);
+
+    let text = tool(&["check", "smooth.txt", "--adc-bits", "12"], dir.path());
+    assert_eq!(status(&text), 0);
+    assert!(stdout(&text).contains("verdict: SAFE"), "{}", stdout(&text));
+}
+
+#[test]
+fn check_loud_table_can_overflow_and_writes_the_worst_case() {
+    let dir = scratch();
+    // Σ|h| = 70000/32768 ≈ 2.1 on full-scale input: the output can leave the 16-bit word.
+    write(dir.path(), "loud.csv", "20000, 20000, -30000\n");
+    let out = tool(
+        &["--json", "check", "loud.csv", "--worst-case", "worst.csv"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
+    let v = json(&out);
+    let h = &v["headroom"];
+    // Largest sum: 20000·32767 twice, −30000·−32768.
+    assert_eq!(h["accumulator_max"], 2 * 20000i64 * 32767 + 30000 * 32768);
+    assert_eq!(h["accumulator_min"], 2 * 20000i64 * -32768 - 30000 * 32767);
+    assert_eq!(h["output_can_saturate"], true);
+    assert_eq!(v["safe"], false);
+    // Oldest sample first: x[n−2] meets tap 2 (negative), x[n−1] tap 1, x[n] tap 0.
+    let worst = fs::read_to_string(dir.path().join("worst.csv")).unwrap_or_default();
+    let rows: Vec<&str> = worst.lines().filter(|l| !l.starts_with('#')).collect();
+    assert_eq!(
+        rows,
+        [
+            "toward_high,toward_low",
+            "-32768,32767",
+            "32767,-32768",
+            "32767,-32768"
+        ]
+    );
+    assert_files(dir.path(), &["loud.csv", "worst.csv"]);
+}
+
+#[test]
+fn check_q31_table_too_loud_for_64_bits() {
+    let dir = scratch();
+    write(
+        dir.path(),
+        "q31.txt",
+        "-2147483648 -2147483648 1073741824\n",
+    );
+    let out = tool(
+        &["--json", "check", "q31.txt", "--format", "q31"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 1);
+    let v = json(&out);
+    // Σ|h| = 2.5 in Q31 on full-scale 32-bit input: the sum reaches 2^63 + 2^61.
+    assert_eq!(v["headroom"]["fits_64_bit_accumulator"], false);
+    assert_eq!(v["headroom"]["smallest_safe_accumulator_bits"], 128);
+    let max = (1i128 << 31) * 2 * (1i128 << 31) + (1i128 << 30) * ((1i128 << 31) - 1);
+    assert_eq!(v["headroom"]["accumulator_max"], max.to_string());
+}
+
+#[test]
+fn check_real_values_are_quantized_and_bounded() {
+    let dir = scratch();
+    write(dir.path(), "real.txt", "0.1\n0.8\n0.1\n");
+    let out = tool(
+        &["--json", "check", "real.txt", "--written", "real"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    // Nearest codes 3277, 26214, 3277 sum to 32768 = round(1.0·2^15): DC gain exactly 1.
+    assert_eq!(v["headroom"]["dc_gain"], 1.0);
+    // Σ|h_q − h| = 0.8·2^−15; times max|x| = 32768 codes: 0.8 LSB, plus ½ LSB of rounding.
+    let bound = v["error_bound_lsb"].as_f64().unwrap_or(f64::NAN);
+    assert!((bound - 1.3).abs() < 1e-6, "{bound}");
+}
+
+#[test]
+fn check_bad_tables_fail_with_place_and_write_nothing() {
+    let cases: &[(&str, &str, &[&str], &str)] = &[
+        (
+            "ragged.csv",
+            "1,2\n3,4\n5\n",
+            &[],
+            "ragged.csv:3:2: expected 2 field(s)",
+        ),
+        (
+            "word.txt",
+            "100\n2x0\n",
+            &[],
+            "word.txt:2:1: expected an integer code",
+        ),
+        (
+            "nan.txt",
+            "0.5\n  NaN\n",
+            &["--written", "real"],
+            "nan.txt:2:3: expected a finite number",
+        ),
+        (
+            "inf.csv",
+            "0.1,inf\n",
+            &["--written", "real"],
+            "inf.csv:1:5: expected a finite number",
+        ),
+        (
+            "empty.txt",
+            "",
+            &[],
+            "empty.txt:1:1: expected at least one row",
+        ),
+        (
+            "comments.txt",
+            "# nothing\n\n",
+            &[],
+            "comments.txt:1:1: expected at least one row",
+        ),
+        (
+            "big.txt",
+            "1\n40000\n",
+            &[],
+            "big.txt:2:1: expected an integer code in -32768..=32767",
+        ),
+        (
+            "hole.csv",
+            "1,,2\n",
+            &[],
+            "hole.csv:1:3: expected an integer code",
+        ),
+        (
+            "wide.txt",
+            "0.5\n1.5\n",
+            &["--written", "real"],
+            "wide.txt:2:1: expected a tap value",
+        ),
+    ];
+    for (name, text, extra, message) in cases {
+        let dir = scratch();
+        write(dir.path(), name, text);
+        let mut args = vec!["check", name, "--worst-case", "worst.csv"];
+        args.extend_from_slice(extra);
+        let out = tool(&args, dir.path());
+        assert_eq!(status(&out), 2, "{name}: {}", stdout(&out));
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{name}: {err}");
+        assert!(err.contains(message), "{name}: {err}");
+        assert_files(dir.path(), &[name]);
+    }
+}
+
+#[test]
+fn check_missing_file_and_bad_flags_exit_2() {
+    let dir = scratch();
+    let out = tool(&["check", "absent.txt"], dir.path());
+    assert_eq!(status(&out), 2);
+    assert!(stderr(&out).contains("absent.txt: could not read"));
+    let out = tool(&["check", "absent.txt", "--format", "q7"], dir.path());
+    assert_eq!(status(&out), 2);
+    let out = tool(&["--json", "check", "absent.txt"], dir.path());
+    assert_eq!(status(&out), 2);
+    assert!(
+        json(&out)["error"]
+            .as_str()
+            .is_some_and(|e| e.contains("absent.txt"))
+    );
+}
+
+// ---- design and emit ----------------------------------------------------------------------
+
+const SILO_SPEC: &str = "examples/tool/silo_scale.toml";
+
+fn repo() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// The library's own answer for the invented silo-scale spec (kept in step with the TOML file).
+fn silo_spec() -> tapline::design::Spec<f64> {
+    tapline::design::Spec {
+        sample_rate_hz: 1000.0,
+        shape: tapline::design::Shape::Lowpass {
+            pass_hz: 5.0,
+            stop_hz: 50.0,
+        },
+        passband_ripple_db: 0.1,
+        stopband_attenuation_db: 60.0,
+    }
+}
+
+fn library_q15() -> Vec<i16> {
+    match silo_spec().kaiser_fixed::<i16, 2048>() {
+        Ok(d) => d.taps.to_vec(),
+        Err(e) => panic!("library design failed: {e}"),
+    }
+}
+
+/// Compiles `source` (which defines `pub static TAPS`) with a `main` that prints every value,
+/// runs it, and returns the printed lines.
+fn compile_and_print(dir: &Path, source: &Path) -> Vec<String> {
+    let main = write(
+        dir,
+        "print_taps.rs",
+        &format!(
+            "include!({:?});\nfn main() {{ for v in TAPS.iter() {{ println!(\"{{v:?}}\"); }} }}\n",
+            source.display().to_string()
+        ),
+    );
+    let rustc = std::env::var("RUSTC").unwrap_or_else(|_| String::from("rustc"));
+    let exe = dir.join("print_taps");
+    let built = Command::new(rustc)
+        .args(["--edition", "2021", "-o"])
+        .arg(&exe)
+        .arg(&main)
+        .output()
+        .unwrap_or_else(|e| panic!("rustc: {e}"));
+    assert!(
+        built.status.success(),
+        "{}",
+        String::from_utf8_lossy(&built.stderr)
+    );
+    let run = Command::new(&exe)
+        .output()
+        .unwrap_or_else(|e| panic!("{e}"));
+    String::from_utf8_lossy(&run.stdout)
+        .lines()
+        .map(String::from)
+        .collect()
+}
+
+#[test]
+fn design_from_the_toml_spec_reports_the_library_design() {
+    let out = tool(&["--json", "design", "--spec", SILO_SPEC], &repo());
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    let q = library_q15();
+    assert_eq!(v["taps"], q.len());
+    assert_eq!(v["group_delay_samples"], (q.len() as f64 - 1.0) / 2.0);
+    let values: Vec<i64> = v["values"]
+        .as_array()
+        .map(|a| a.iter().filter_map(Value::as_i64).collect())
+        .unwrap_or_default();
+    assert_eq!(values, q.iter().map(|&c| i64::from(c)).collect::<Vec<_>>());
+    assert_eq!(v["quantized"]["meets_spec"], true);
+    assert!(
+        v["quantized"]["attenuation_db"]
+            .as_f64()
+            .is_some_and(|a| a >= 60.0)
+    );
+    // 12-bit codes right-aligned: -2048..=2047; Σ|h| a little over 1 cannot leave 16 bits.
+    assert_eq!(v["headroom"]["input_min"], -2048);
+    assert_eq!(v["headroom"]["input_max"], 2047);
+    assert_eq!(v["safe"], true);
+
+    // The same spec as flags gives the same taps; the text names the figures.
+    let flags = [
+        "design",
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "5,50",
+        "--ripple",
+        "0.1",
+        "--attenuation",
+        "60",
+        "--format",
+        "q15",
+        "--adc-bits",
+        "12",
+        "--align",
+        "right",
+    ];
+    let text = tool(&flags, &repo());
+    assert_eq!(status(&text), 0, "{}", stderr(&text));
+    let t = stdout(&text);
+    assert!(t.contains(&format!("length: {} taps", q.len())), "{t}");
+    assert!(
+        t.contains("Q15 taps: ripple") && t.contains("-> meets the spec"),
+        "{t}"
+    );
+    assert!(t.contains("verdict: SAFE"), "{t}");
+}
+
+#[test]
+fn emitted_rust_compiles_and_equals_the_library_taps() {
+    let dir = scratch();
+    let out = tool(
+        &[
+            "emit",
+            "--spec",
+            &repo().join(SILO_SPEC).display().to_string(),
+            "--out",
+            "taps.rs",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let source = fs::read_to_string(dir.path().join("taps.rs")).unwrap_or_default();
+    assert!(
+        source.contains("/// Generated by: `tapline emit --spec "),
+        "{source}"
+    );
+    assert!(source.contains("verdict: SAFE"), "{source}");
+    let printed = compile_and_print(dir.path(), &dir.path().join("taps.rs"));
+    let expected: Vec<String> = library_q15().iter().map(|c| c.to_string()).collect();
+    assert_eq!(printed, expected);
+}
+
+#[test]
+fn emitted_q31_and_f32_compile_and_equal_the_library() {
+    let spec = silo_spec();
+    let q31 = match spec.kaiser_fixed::<i32, 2048>() {
+        Ok(d) => d.taps.iter().map(|c| c.to_string()).collect::<Vec<_>>(),
+        Err(e) => panic!("{e}"),
+    };
+    let f32s = match spec.kaiser::<2048>() {
+        Ok(d) => d
+            .taps
+            .iter()
+            .map(|&h| format!("{:?}", h as f32))
+            .collect::<Vec<_>>(),
+        Err(e) => panic!("{e}"),
+    };
+    for (format, expected) in [("q31", q31), ("f32", f32s)] {
+        let dir = scratch();
+        let args = [
+            "emit",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "5,50",
+            "--attenuation",
+            "60",
+            "--format",
+            format,
+            "--out",
+            "taps.rs",
+        ];
+        let out = tool(&args, dir.path());
+        assert_eq!(status(&out), 0, "{format}: {}", stderr(&out));
+        assert_eq!(
+            compile_and_print(dir.path(), &dir.path().join("taps.rs")),
+            expected
+        );
+    }
+}
+
+// The committed example file, compiled into this test: it must still be what the library
+// designs for the spec beside it.
+mod committed {
+    include!("../examples/tool/silo_scale_taps.rs");
+}
+
+#[test]
+fn committed_example_taps_are_current() {
+    assert_eq!(committed::SILO_SCALE_TAPS.to_vec(), library_q15());
+    let dir = scratch();
+    let out = tool(
+        &[
+            "emit",
+            "--spec",
+            &repo().join(SILO_SPEC).display().to_string(),
+            "--out",
+            "again.rs",
+            "--name",
+            "SILO_SCALE_TAPS",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let again = fs::read_to_string(dir.path().join("again.rs")).unwrap_or_default();
+    let committed =
+        fs::read_to_string(repo().join("examples/tool/silo_scale_taps.rs")).unwrap_or_default();
+    let array = |s: &str| s.split_once("pub static").map(|(_, a)| a.to_string());
+    assert_eq!(array(&again), array(&committed));
+}
+
+#[test]
+fn bad_specs_fail_with_place_and_write_nothing() {
+    let flag_cases: &[(&[&str], &str)] = &[
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "50,5",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --edges: expected edges in increasing order, found 5 after 50",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "5,500",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --edges: expected an edge strictly between 0 and fs/2 = 500 Hz",
+        ),
+        (
+            &[
+                "--band",
+                "bandpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "5,50",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --edges: expected 4 edges",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--edges",
+                "5,50",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --rate: expected a sample rate",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "-8",
+                "--edges",
+                "5,50",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --rate: expected a positive sample rate",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "5,50",
+                "--attenuation",
+                "60",
+                "--adc-bits",
+                "17",
+            ],
+            "command line: --adc-bits: expected ADC bits in 1..=16",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "5,50",
+                "--attenuation",
+                "60",
+                "--name",
+                "taps",
+            ],
+            "command line: --name: expected an upper-case Rust identifier",
+        ),
+        (
+            &[
+                "--band",
+                "lowpass",
+                "--rate",
+                "1000",
+                "--edges",
+                "50,50",
+                "--attenuation",
+                "60",
+            ],
+            "command line: --edges: expected edges in increasing order, found 50 after 50",
+        ),
+    ];
+    for (args, message) in flag_cases {
+        let dir = scratch();
+        let mut all = vec!["emit", "--out", "taps.rs"];
+        all.extend_from_slice(args);
+        let out = tool(&all, dir.path());
+        assert_eq!(status(&out), 2, "{args:?}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{args:?}: {err}");
+        assert_files(dir.path(), &[]);
+    }
+
+    let good = "band = \"lowpass\"\nsample_rate_hz = 1000\nedges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"q15\"\n";
+    let toml_cases: &[(&str, &str, &str)] = &[
+        (
+            "edges_hz = [5, 50]",
+            "edges_hz = [50, 5]",
+            "spec.toml:3:17: expected edges in increasing order",
+        ),
+        (
+            "edges_hz = [5, 50]",
+            "edges_hz = [5, 501]",
+            "spec.toml:3:16: expected an edge strictly between 0 and fs/2",
+        ),
+        ("ripple_db = 0.1", "ripple_db = 0.x1", "spec.toml:4:"),
+        (
+            "band = \"lowpass\"",
+            "band = \"lowish\"",
+            "spec.toml:1:8: expected band =",
+        ),
+        (
+            "format = \"q15\"",
+            "format = \"q7\"",
+            "spec.toml:6:10: expected format =",
+        ),
+        (
+            "format = \"q15\"",
+            "format = \"q15\"\ncolour = 3",
+            "spec.toml:7:1:",
+        ),
+        (
+            "attenuation_db = 60",
+            "attenuation_db = inf",
+            "spec.toml:5:18: expected an attenuation",
+        ),
+        (
+            "edges_hz = [5, 50]",
+            "edges_hz = [5, nan]",
+            "spec.toml:3:16: expected an edge",
+        ),
+        ("sample_rate_hz = 1000", "", "spec.toml:1:1:"),
+    ];
+    for (from, to, message) in toml_cases {
+        let dir = scratch();
+        write(dir.path(), "spec.toml", &good.replace(from, to));
+        let out = tool(
+            &["emit", "--spec", "spec.toml", "--out", "taps.rs"],
+            dir.path(),
+        );
+        assert_eq!(status(&out), 2, "{to}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{to}: {err}");
+        assert_files(dir.path(), &["spec.toml"]);
+    }
+}
+
+#[test]
+fn a_spec_too_deep_for_q15_fails_cleanly() {
+    let dir = scratch();
+    let out = tool(
+        &[
+            "emit",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "5,50",
+            "--attenuation",
+            "100",
+            "--out",
+            "taps.rs",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert!(
+        stderr(&out).contains("meets the spec in this format"),
+        "{}",
+        stderr(&out)
+    );
+    assert_files(dir.path(), &[]);
+}
+
+#[test]
+fn a_write_that_fails_leaves_no_temporary_file() {
+    let dir = scratch();
+    fs::create_dir(dir.path().join("taken")).unwrap_or_else(|e| panic!("{e}"));
+    // The rename cannot replace a directory: the temporary file must be cleaned away.
+    let out = tool(
+        &[
+            "emit",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "5,50",
+            "--attenuation",
+            "40",
+            "--out",
+            "taken",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert!(
+        stderr(&out).contains("taken: could not write"),
+        "{}",
+        stderr(&out)
+    );
+    assert_files(dir.path(), &["taken"]);
+    let out = tool(
+        &[
+            "emit",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "5,50",
+            "--attenuation",
+            "40",
+            "--out",
+            "missing/taps.rs",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert_files(dir.path(), &["taken"]);
+}
+
+// ---- replay --------------------------------------------------------------------------------
+
+/// Half-up rounding of sum / 2^15 and saturation to i16, from the definitions.
+fn q15_model(taps: &[i64], xs: &[i64]) -> (Vec<i64>, usize) {
+    let mut saturated = 0;
+    let ys = (0..xs.len())
+        .map(|n| {
+            let acc: i64 = taps
+                .iter()
+                .enumerate()
+                .filter(|(k, _)| *k <= n)
+                .map(|(k, h)| h * xs[n - k])
+                .sum();
+            let y = (acc + (1 << 14)).div_euclid(1 << 15);
+            if !(-32768..=32767).contains(&y) {
+                saturated += 1;
+            }
+            y.clamp(-32768, 32767)
+        })
+        .collect();
+    (ys, saturated)
+}
+
+fn csv_column(text: &str, column: usize) -> Vec<i64> {
+    text.lines()
+        .skip(1)
+        .filter_map(|l| l.split(',').nth(column).and_then(|v| v.parse().ok()))
+        .collect()
+}
+
+#[test]
+fn replay_matches_the_exact_model_and_writes_the_output() {
+    let dir = scratch();
+    let taps = [5000i64, -12000, 30000, 7];
+    write(
+        dir.path(),
+        "taps.txt",
+        &taps
+            .iter()
+            .map(|t| t.to_string())
+            .collect::<Vec<_>>()
+            .join("\n"),
+    );
+    let xs: Vec<i64> = (0..300).map(|n| (n * 7919 % 4001) - 2000).collect();
+    let capture: String = std::iter::once("when,code\n".to_string())
+        .chain(xs.iter().enumerate().map(|(n, x)| format!("{n},{x}\n")))
+        .collect();
+    write(dir.path(), "capture.csv", &capture);
+    let out = tool(
+        &[
+            "--json",
+            "replay",
+            "capture.csv",
+            "--taps",
+            "taps.txt",
+            "--column",
+            "2",
+            "--header",
+            "--adc-bits",
+            "12",
+            "--align",
+            "right",
+            "--out",
+            "filtered.csv",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["samples"], 300);
+    assert_eq!(v["saturated"], 0);
+    // Codes as taps: the reference has the same taps, so only the output rounding differs.
+    assert!(v["max_error_lsb"].as_f64().is_some_and(|e| e <= 0.5), "{v}");
+    assert_eq!(v["error_bound_lsb"], 0.5);
+    let written = fs::read_to_string(dir.path().join("filtered.csv")).unwrap_or_default();
+    assert_eq!(csv_column(&written, 1), xs);
+    assert_eq!(csv_column(&written, 2), q15_model(&taps, &xs).0);
+    assert_files(dir.path(), &["capture.csv", "filtered.csv", "taps.txt"]);
+}
+
+#[test]
+fn replay_counts_saturation_and_exits_1() {
+    let dir = scratch();
+    write(dir.path(), "loud.txt", "32767\n32767\n");
+    let xs = [30000i64, 30000, -30000, -30000, 100];
+    write(
+        dir.path(),
+        "capture.txt",
+        &xs.iter().map(|x| format!("{x}\n")).collect::<String>(),
+    );
+    let out = tool(
+        &["--json", "replay", "capture.txt", "--taps", "loud.txt"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
+    let (_, saturated) = q15_model(&[32767, 32767], &xs);
+    // 30000 + 30000 and −30000 − 30000 leave the word; the sums around them do not.
+    assert_eq!(saturated, 2);
+    assert_eq!(json(&out)["saturated"], saturated);
+}
+
+#[test]
+fn replay_of_the_invented_capture_stays_within_the_bound() {
+    let out = tool(
+        &[
+            "--json",
+            "replay",
+            "examples/tool/silo_capture.csv",
+            "--spec",
+            SILO_SPEC,
+            "--column",
+            "2",
+            "--header",
+        ],
+        &repo(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["samples"], 2000);
+    assert_eq!(v["within_bound"], true);
+    assert!(v["accumulator_bits_used"].as_u64() <= v["accumulator_bits_worst_case"].as_u64());
+    assert!(v["snr_db"].as_f64().is_some_and(|s| s > 40.0), "{v}");
+}
+
+#[test]
+fn replay_bad_captures_fail_with_place_and_write_nothing() {
+    let cases: &[(&str, &str, &str)] = &[
+        (
+            "ragged.csv",
+            "0,1\n1,2\n2\n",
+            "ragged.csv:3:2: expected 2 field(s) as on line 1",
+        ),
+        (
+            "word.csv",
+            "0,1\n1,x2\n",
+            "word.csv:2:3: expected a sample code in -2048..=2047",
+        ),
+        (
+            "range.csv",
+            "0,1\n1,3000\n",
+            "range.csv:2:3: expected a sample code in -2048..=2047",
+        ),
+        (
+            "empty.csv",
+            "# nothing here\n",
+            "empty.csv:1:1: expected at least one row",
+        ),
+        (
+            "narrow.csv",
+            "5\n6\n",
+            "narrow.csv:1:1: expected at least 2 field(s)",
+        ),
+    ];
+    for (name, text, message) in cases {
+        let dir = scratch();
+        write(dir.path(), "taps.txt", "16384 16384\n");
+        write(dir.path(), name, text);
+        let out = tool(
+            &[
+                "replay",
+                name,
+                "--taps",
+                "taps.txt",
+                "--column",
+                "2",
+                "--adc-bits",
+                "12",
+                "--align",
+                "right",
+                "--out",
+                "out.csv",
+            ],
+            dir.path(),
+        );
+        assert_eq!(status(&out), 2, "{name}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{name}: {err}");
+        assert_files(dir.path(), &["taps.txt", name]);
+    }
+}
+
+// ---- plot ----------------------------------------------------------------------------------
+
+#[test]
+fn plot_draws_the_response_and_one_marker_per_tap() {
+    let dir = scratch();
+    let spec = repo().join(SILO_SPEC).display().to_string();
+    let out = tool(
+        &["--json", "plot", "--spec", &spec, "--out", "silo.svg"],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    assert_eq!(json(&out)["file"], "silo.svg");
+    let svg = fs::read_to_string(dir.path().join("silo.svg")).unwrap_or_default();
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    assert!(svg.contains("magnitude: float64 and Q15 taps"), "no title");
+    assert!(svg.contains("passband, 0..5 Hz"), "no passband zoom");
+    assert!(svg.contains("impulse response"), "no impulse response");
+    assert_eq!(svg.matches("<circle").count(), library_q15().len());
+    // Two bands shaded (pass and stop) as filled rectangles beyond the background.
+    assert!(svg.matches("<rect").count() >= 3);
+    assert_files(dir.path(), &["silo.svg"]);
+}
+
+#[test]
+fn plot_of_a_bad_spec_writes_nothing() {
+    let dir = scratch();
+    let out = tool(
+        &[
+            "plot",
+            "--band",
+            "bandstop",
+            "--rate",
+            "1000",
+            "--edges",
+            "10,20,30",
+            "--attenuation",
+            "40",
+            "--out",
+            "bad.svg",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert!(
+        stderr(&out).contains("--edges: expected 4 edges"),
+        "{}",
+        stderr(&out)
+    );
+    assert_files(dir.path(), &[]);
+}
+
+#[test]
+fn usage_mistakes_are_one_line_and_exit_2() {
+    let dir = scratch();
+    for args in [
+        &["check", "t.txt", "--format", "q7"][..],
+        &["frobnicate"][..],
+        &[
+            "design", "--band", "lowpass", "--rate", "1000", "--edges", "5,50",
+        ][..],
+        &["replay", "capture.csv"][..],
+    ] {
+        let out = tool(args, dir.path());
+        assert_eq!(status(&out), 2, "{args:?}");
+        assert_eq!(
+            stderr(&out).lines().count(),
+            1,
+            "{args:?}: {}",
+            stderr(&out)
+        );
+    }
+    let out = tool(&["--json", "check", "t.txt", "--format", "q7"], dir.path());
+    assert!(
+        json(&out)["error"]
+            .as_str()
+            .is_some_and(|e| e.contains("q7"))
+    );
+    assert_files(dir.path(), &[]);
+    let help = tool(&["--help"], dir.path());
+    assert_eq!(status(&help), 0);
+    for command in ["design", "emit", "check", "replay", "plot"] {
+        assert!(stdout(&help).contains(command), "{command}");
+    }
+}
