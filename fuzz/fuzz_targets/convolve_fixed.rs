@@ -36,11 +36,20 @@ where
         return;
     }
     if !S::accumulator_fits(kernel) {
-        assert!(matches!(result, Err(Error::AccumulatorOverflow) | Err(Error::OutputLength { .. })));
+        assert!(matches!(
+            result,
+            Err(Error::AccumulatorOverflow) | Err(Error::OutputLength { .. })
+        ));
         return;
     }
     if out_len != len {
-        assert_eq!(result, Err(Error::OutputLength { expected: len, found: out_len }));
+        assert_eq!(
+            result,
+            Err(Error::OutputLength {
+                expected: len,
+                found: out_len
+            })
+        );
         return;
     }
     let full = common::convolve_full_exact(&x, &h);
@@ -49,7 +58,11 @@ where
         .map(|&a| common::finish_exact(a, S::FRAC, S::BITS, mode))
         .collect();
     assert_eq!(result, Ok(model.iter().filter(|m| m.1).count()));
-    assert!(out.iter().zip(&model).all(|(o, m)| i128::from(o.raw()) == m.0));
+    assert!(
+        out.iter()
+            .zip(&model)
+            .all(|(o, m)| i128::from(o.raw()) == m.0)
+    );
 
     let h_rev: Vec<i64> = h.iter().rev().copied().collect();
     let full = common::convolve_full_exact(&x, &h_rev);

@@ -33,7 +33,13 @@ struct Case {
 
 fn narrow(v: &[i32], bits: u32) -> Vec<i64> {
     v.iter()
-        .map(|&x| if bits == 16 { i64::from(x as i16) } else { i64::from(x) })
+        .map(|&x| {
+            if bits == 16 {
+                i64::from(x as i16)
+            } else {
+                i64::from(x)
+            }
+        })
         .collect()
 }
 
@@ -54,7 +60,8 @@ fuzz_target!(|case: Case| {
     with_tap_count!(n, |N| match case.format {
         Format::Q15 => common::check_fixed_fir::<i16, i16, DefaultAcc, N>(64, &h, &x, &sizes, mode),
         Format::Q31 => common::check_fixed_fir::<i32, i32, DefaultAcc, N>(64, &h, &x, &sizes, mode),
-        Format::Q31Wide => common::check_fixed_fir::<i32, i32, Acc128, N>(128, &h, &x, &sizes, mode),
+        Format::Q31Wide =>
+            common::check_fixed_fir::<i32, i32, Acc128, N>(128, &h, &x, &sizes, mode),
         Format::Adc12WithQ15Taps => {
             common::check_fixed_fir::<I4F12, I1F15, DefaultAcc, N>(64, &h, &x, &sizes, mode)
         }

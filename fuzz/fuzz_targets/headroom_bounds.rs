@@ -41,10 +41,16 @@ fuzz_target!(|case: Case| {
     let _ = Rounding::HalfUp.shift_wide(i128::from(case.b) << 40, case.word_bits);
 
     let (report, h): (Headroom, Vec<i64>) = if case.wide {
-        (Headroom::q31(&case.taps, range), case.taps.iter().map(|&v| i64::from(v)).collect())
+        (
+            Headroom::q31(&case.taps, range),
+            case.taps.iter().map(|&v| i64::from(v)).collect(),
+        )
     } else {
         let q: Vec<i16> = case.taps.iter().map(|&v| v as i16).collect();
-        (Headroom::q15(&q, range), q.iter().map(|&v| i64::from(v)).collect())
+        (
+            Headroom::q15(&q, range),
+            q.iter().map(|&v| i64::from(v)).collect(),
+        )
     };
     let (lo, hi) = report.accumulator_range();
     let worst = |toward| -> Vec<i64> {
@@ -55,8 +61,14 @@ fuzz_target!(|case: Case| {
             report.worst_case_input(&q, toward).collect()
         }
     };
-    assert_eq!(common::fir_exact(&h, &worst(Extreme::High)).last().copied(), Some(hi));
-    assert_eq!(common::fir_exact(&h, &worst(Extreme::Low)).last().copied(), Some(lo));
+    assert_eq!(
+        common::fir_exact(&h, &worst(Extreme::High)).last().copied(),
+        Some(hi)
+    );
+    assert_eq!(
+        common::fir_exact(&h, &worst(Extreme::Low)).last().copied(),
+        Some(lo)
+    );
     let r = report.input();
     let span = (r.max() - r.min()) as u64 + 1;
     let x: Vec<i64> = case
