@@ -3,6 +3,7 @@
 //! decimation phase, and the block loops that make block calls equal per-sample calls.
 
 use crate::kernel::{Fold, FoldMulAcc, dot_folded, dot_reversed, dot_reversed_strided};
+use crate::num::fixed_point::clamp_masked;
 use crate::num::{FixedPoint, MulAcc, Rounding, Sample};
 use crate::{Error, Ring};
 
@@ -41,9 +42,9 @@ impl OutputStep {
     /// A raw fixed-point result clamped to `S`'s range; a clamp is counted.
     #[inline(always)]
     pub(crate) fn saturate<S: FixedPoint>(&mut self, raw: i64) -> S {
-        let clamped = raw.clamp(S::RAW_MIN, S::RAW_MAX);
-        self.count(clamped != raw);
-        S::from_raw(clamped)
+        let (clamped, saturated) = clamp_masked(raw, S::RAW_MIN, S::RAW_MAX);
+        self.count(saturated);
+        S::from_raw_truncating(clamped)
     }
 
     #[inline(always)]

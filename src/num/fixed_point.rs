@@ -108,28 +108,31 @@ pub(crate) fn finish_fixed_i64<S: FixedPoint>(
     rounding: Rounding,
 ) -> (S, bool) {
     let q = rounding.shift(acc, tap_frac);
-    if tap_frac == 0 {
-        // Integer taps: q may reach the ends of i64, where the masks below could wrap.
-        let clamped = q.clamp(S::RAW_MIN, S::RAW_MAX);
-        return (S::from_raw(clamped), clamped != q);
-    }
     let (value, clamped) = clamp_masked(q, S::RAW_MIN, S::RAW_MAX);
     (S::from_raw_truncating(value), clamped)
 }
 
-/// `q` clamped to `[min, max]` with masks instead of compare-and-branch, so every value costs
-/// the same instructions even on cores without conditional execution (Cortex-M0); the flag says
-/// whether clamping acted. Needs |q| ≤ 2^62 and |min|, |max| ≤ 2^62 (no subtraction wraps).
+/// `q` clamped to `[min, max]` (min ≤ max) with masks instead of compare-and-branch, so every
+/// value costs the same instructions even on cores without conditional execution (Cortex-M0);
+/// the flag says whether clamping acted. Exact for every `i64`.
 #[inline(always)]
 pub(crate) fn clamp_masked(q: i64, min: i64, max: i64) -> (i64, bool) {
     // `black_box` hides the masks' origin from the optimiser, which would otherwise turn
     // them back into compare-and-select — a branch on cores without conditional execution.
     // It changes no value, only keeps the cost the same for every input.
-    let below = core::hint::black_box(q.wrapping_sub(min) >> 63); // all ones when q < min
-    let above = core::hint::black_box(max.wrapping_sub(q) >> 63); // all ones when q > max
+    let below = core::hint::black_box(less_mask(q, min)); // all ones when q < min
+    let above = core::hint::black_box(less_mask(max, q)); // all ones when q > max
     let out = below | above;
     let value = (q & !out) | (min & below) | (max & above);
     (value, out & 1 == 1)
+}
+
+/// All ones when `x < y`, else zero, for any two `i64`: the sign of x − y, corrected where the
+/// subtraction overflows (H. S. Warren, *Hacker's Delight*, 2nd ed., 2012, §2-12, from memory).
+#[inline(always)]
+fn less_mask(x: i64, y: i64) -> i64 {
+    let d = x.wrapping_sub(y);
+    (d ^ ((x ^ y) & (d ^ x))) >> 63
 }
 
 /// The exact product of a tap and a sample. Two 16-bit operands multiply in 32 bits (|p| ≤ 2^30
@@ -204,4 +207,45 @@ macro_rules! wide_mul_acc {
 wide_mul_acc! {
     [] i32 => i32;
     [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>;
+}
+
+#[cfg(test)]
+mod tests {
+    use super::clamp_masked;
+
+    /// The masked clamp equals `i64::clamp` everywhere, the ends of `i64` included (where a
+    /// plain subtraction would wrap).
+    #[test]
+    fn masked_clamp_equals_clamp_at_the_extremes() {
+        let values = [
+            i64::MIN,
+            i64::MIN + 1,
+            -(1 << 62),
+            -32769,
+            -32768,
+            -1,
+            0,
+            1,
+            32767,
+            32768,
+            1 << 62,
+            i64::MAX - 1,
+            i64::MAX,
+        ];
+        for (min, max) in [
+            (-32768, 32767),
+            (i64::from(i32::MIN), i64::from(i32::MAX)),
+            (i64::MIN, i64::MAX),
+            (0, 0),
+        ] {
+            for &q in &values {
+                let want = q.clamp(min, max);
+                assert_eq!(
+                    clamp_masked(q, min, max),
+                    (want, want != q),
+                    "q={q} in {min}..={max}"
+                );
+            }
+        }
+    }
 }
