@@ -1,7 +1,12 @@
-//! The one history buffer: exactly the last `N` samples, O(1) push, read as two contiguous
-//! slices so that kernels run plain slice loops (no `%`, no per-element bounds checks).
+//! The one history buffer: exactly the last `N` samples, O(1) push, read as **one** contiguous
+//! slice so that kernels run a single plain slice loop (no `%`, no wrap, no bounds checks), and
+//! so that a block of new samples can be laid out right after the history for the block
+//! kernels (several outputs per pass over the taps).
 //!
-//! RAM: `N` samples plus one `usize` index — no mirrored 2N copy.
+//! Layout: two copies of the N slots back to back ("mirrored"); every value is written to both
+//! halves, so the last N values are always one slice, wherever the write position is.
+//! RAM: `2·N` samples plus one `usize` index. The second copy is the price of the contiguous
+//! window; it is what lets the block path reuse each loaded tap for four outputs.
 
 /// A ring of the last `N` values pushed, oldest first.
 ///
@@ -14,8 +19,7 @@
 /// for x in 1..=5 {
 ///     ring.push(x);
 /// }
-/// let (older, newer) = ring.as_slices();
-/// assert_eq!((older, newer), (&[3][..], &[4, 5][..]));
+/// assert_eq!(ring.window(), &[3, 4, 5]);
 /// assert!(ring.iter().eq([3, 4, 5].iter()));
 /// assert_eq!(ring.latest(), 5);
 /// ```
@@ -27,7 +31,9 @@
 /// ```
 #[derive(Clone, Debug)]
 pub struct Ring<T, const N: usize> {
-    slots: [T; N],
+    /// `[primary, mirror]`: slot `i` of both halves holds the same value once a write has been
+    /// committed. Staged values ([`stage`](Ring::stage)) are in the mirror only.
+    slots: [[T; N]; 2],
     /// Where the next value goes, which is also where the oldest value is. Always `< N`.
     next: usize,
 }
@@ -39,7 +45,7 @@ impl<T: Copy, const N: usize> Ring<T, N> {
     pub const fn new(fill: T) -> Self {
         const { assert!(N > 0, "a ring needs at least one slot") };
         Ring {
-            slots: [fill; N],
+            slots: [[fill; N]; 2],
             next: 0,
         }
     }
@@ -56,11 +62,14 @@ impl<T: Copy, const N: usize> Ring<T, N> {
         false
     }
 
-    /// Appends `value`, dropping the oldest. O(1); a compare-and-reset, no division.
+    /// Appends `value`, dropping the oldest. O(1): two stores and a compare-and-reset, no
+    /// division.
     #[inline]
     pub fn push(&mut self, value: T) {
-        if let Some(slot) = self.slots.get_mut(self.next) {
-            *slot = value;
+        let [primary, mirror] = &mut self.slots;
+        if let (Some(a), Some(b)) = (primary.get_mut(self.next), mirror.get_mut(self.next)) {
+            *a = value;
+            *b = value;
         }
         self.next += 1;
         if self.next >= N {
@@ -80,7 +89,8 @@ impl<T: Copy, const N: usize> Ring<T, N> {
     /// ```
     #[inline]
     pub fn shift_in(&mut self, value: T) -> T {
-        let leaving = match self.slots.get(self.next) {
+        let [primary, _] = &self.slots;
+        let leaving = match primary.get(self.next) {
             Some(&v) => v,
             // `next < N` always holds; this arm only keeps the path free of panics.
             None => value,
@@ -89,40 +99,90 @@ impl<T: Copy, const N: usize> Ring<T, N> {
         leaving
     }
 
-    /// The history as `(older, newer)`: `older` followed by `newer` is every value, oldest to
-    /// newest. One of the two may be empty.
+    /// The history, oldest to newest, as one slice of `N` values.
+    ///
+    /// ```
+    /// use tapline::Ring;
+    /// let mut ring = Ring::<u8, 4>::new(0);
+    /// ring.push(1);
+    /// ring.push(2);
+    /// assert_eq!(ring.window(), &[0, 0, 1, 2]);
+    /// ```
     #[inline]
     #[must_use]
-    pub fn as_slices(&self) -> (&[T], &[T]) {
-        match self.slots.split_at_checked(self.next) {
-            Some((newer, older)) => (older, newer),
-            // `next < N` always holds; this arm only keeps the path free of panics.
-            None => (self.slots.as_slice(), &[]),
-        }
+    pub fn window(&self) -> &[T] {
+        // The oldest value sits at `next` in the primary half; the N values from there run
+        // on into the mirror, which repeats the primary's slots 0..next (the newer values).
+        let flat = self.slots.as_flattened();
+        flat.get(self.next..self.next + N).unwrap_or(flat)
     }
 
     /// The most recently pushed value (the fill value if nothing was pushed).
     #[inline]
     #[must_use]
     pub fn latest(&self) -> T {
-        let (older, newer) = self.as_slices();
-        match newer.last().or(older.last()) {
+        let [primary, _] = &self.slots;
+        match self.window().last() {
             Some(&v) => v,
-            // Unreachable: `new` asserts N ≥ 1 at compile time, so one slice is non-empty.
+            // Unreachable: `new` asserts N ≥ 1 at compile time, so the window is non-empty.
             #[allow(clippy::indexing_slicing)]
-            None => self.slots[0],
+            None => primary[0],
         }
     }
 
     /// Every value, oldest to newest.
     pub fn iter(&self) -> impl DoubleEndedIterator<Item = &T> {
-        let (older, newer) = self.as_slices();
-        older.iter().chain(newer)
+        self.window().iter()
     }
 
     /// Sets every entry to `fill` and restarts at slot 0.
     pub fn fill(&mut self, fill: T) {
-        self.slots = [fill; N];
+        self.slots = [[fill; N]; 2];
         self.next = 0;
+    }
+
+    /// Lays `incoming` (at most `N − next` values, between 1 and N; the rest is left unread) out right after the history without committing it, and returns how many values
+    /// `k` it took. [`staged_span`](Ring::staged_span) then reads them with the history before
+    /// them.
+    ///
+    /// The staged values go to the mirror half, whose slots there repeat the primary's oldest
+    /// values; the primary still holds those until [`commit`](Ring::commit), so a caller that
+    /// does not commit leaves the ring's history as it was.
+    #[inline]
+    pub(crate) fn stage(&mut self, incoming: impl IntoIterator<Item = T>) -> usize {
+        let [_, mirror] = &mut self.slots;
+        let room = mirror.get_mut(self.next..).unwrap_or(&mut []);
+        let mut staged = 0;
+        for (slot, x) in room.iter_mut().zip(incoming) {
+            *slot = x;
+            staged += 1;
+        }
+        staged
+    }
+
+    /// After [`stage`](Ring::stage) took `k` values: the span `x[n−N+2 ..= n+k]`, the last
+    /// `N − 1` history values followed by the `k` staged ones (`N − 1 + k` values). Output
+    /// `i < k` of the block is the convolution sum over `span[i .. i + N]`.
+    #[inline]
+    #[must_use]
+    pub(crate) fn staged_span(&self, k: usize) -> &[T] {
+        let k = k.min(N - self.next);
+        self.slots
+            .as_flattened()
+            .get(self.next + 1..self.next + N + k)
+            .unwrap_or(&[])
+    }
+
+    /// Makes the `k` values last staged part of the history: copies them into the primary half
+    /// and advances the write position past them.
+    #[inline]
+    pub(crate) fn commit(&mut self, k: usize) {
+        let next = self.next;
+        let end = (next + k).min(N);
+        let [primary, mirror] = &mut self.slots;
+        if let (Some(to), Some(from)) = (primary.get_mut(next..end), mirror.get(next..end)) {
+            to.copy_from_slice(from);
+        }
+        self.next = if end >= N { 0 } else { end };
     }
 }

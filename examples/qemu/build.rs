@@ -36,6 +36,11 @@ fn main() {
     println!("cargo:rustc-link-arg-bins=-Tlink.x");
     println!("cargo:rerun-if-changed=src/scenario.rs");
     println!("cargo:rerun-if-changed=build.rs");
+    // The library's DSP kernels exist on Armv7E-M (its own build script decides the same way).
+    println!("cargo::rustc-check-cfg=cfg(dsp_kernels)");
+    if target.starts_with("thumbv7em-") {
+        println!("cargo::rustc-cfg=dsp_kernels");
+    }
 
     const N: usize = 31;
     let q15 = q15_taps::<N>();

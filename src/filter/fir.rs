@@ -208,8 +208,16 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W> Fir<'a, S, N, T, W> {
                 found: output.len(),
             });
         }
-        for (&x, y) in input.iter().zip(output) {
-            *y = self.push(x);
+        // The ring stages up to N samples at a time (fewer when its write position is not at
+        // the start), so a block runs as one or more chunks through the block kernel.
+        let mut done = 0;
+        while let (Some(part), Some(out)) = (input.get(done..), output.get_mut(done..)) {
+            if part.is_empty() {
+                break;
+            }
+            let k = self.stage(part);
+            self.emit_staged(k, out);
+            done += k;
         }
         Ok(())
     }
@@ -217,9 +225,49 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W> Fir<'a, S, N, T, W> {
     /// Filters `buffer` in place (e.g. a DMA half-buffer), exactly as repeated
     /// [`push`](Fir::push).
     pub fn process_in_place(&mut self, buffer: &mut [S]) {
-        for v in buffer {
-            *v = self.push(*v);
+        let mut rest = buffer;
+        while !rest.is_empty() {
+            // Staging copies the inputs into the ring, so the outputs may then overwrite them.
+            let k = self.stage(rest);
+            let (chunk, after) = core::mem::take(&mut rest)
+                .split_at_mut_checked(k)
+                .unwrap_or((&mut [], &mut []));
+            self.emit_staged(k, chunk);
+            rest = after;
         }
+    }
+
+    /// Admits as many of `input` as the ring can stage at once (at least one), counting
+    /// clamped inputs, and returns how many it took.
+    #[inline]
+    fn stage(&mut self, input: &[S]) -> usize {
+        let mut clamped = 0u32;
+        let k = self.history.stage(input.iter().map(|&x| {
+            let (x, was_clamped) = S::admit(x);
+            clamped = clamped.wrapping_add(u32::from(was_clamped));
+            x
+        }));
+        self.saturations = super::shared::count_events(self.saturations, clamped);
+        k
+    }
+
+    /// Computes the outputs of the `k` staged samples into `out` with the block kernel (four
+    /// outputs per pass over the taps) and commits them to the history.
+    #[inline]
+    fn emit_staged(&mut self, k: usize, out: &mut [S]) {
+        let span = self.history.staged_span(k);
+        let rounding = self.rounding;
+        let mut saturated = 0u32;
+        let mut slots = out.iter_mut();
+        S::dot_block(self.taps, span, |acc| {
+            let (y, clamped) = S::finish(acc, rounding);
+            saturated = saturated.wrapping_add(u32::from(clamped));
+            if let Some(slot) = slots.next() {
+                *slot = y;
+            }
+        });
+        self.saturations = super::shared::count_events(self.saturations, saturated);
+        self.history.commit(k);
     }
 
     /// Returns to the state [`new`](Fir::new) made: zero history, zero saturation count. Taps

@@ -112,12 +112,7 @@ pub(crate) fn history_dot<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
     history: &Ring<S, N>,
     taps: &[T],
 ) -> S::Acc {
-    let (older, newer) = history.as_slices();
-    // The newest sample meets taps[0]: taps[..newer.len()] pair with `newer`, the rest with
-    // `older`; both slices are read newest-first by the kernel.
-    let (near, far) = taps.split_at_checked(newer.len()).unwrap_or((taps, &[]));
-    let acc = dot_reversed::<S, T, W>(acc, near, newer);
-    dot_reversed::<S, T, W>(acc, far, older)
+    dot_reversed::<S, T, W>(acc, taps, history.window())
 }
 
 /// `acc + Σ_i taps[i·tap_step]·x[n − skip − i·x_step]` over the history, in ascending i, for as
@@ -131,28 +126,9 @@ pub(crate) fn history_dot_strided<S: MulAcc<T, W>, T: Sample, W, const N: usize>
     skip: usize,
     x_step: usize,
 ) -> S::Acc {
-    let (tap_step, x_step) = (tap_step.max(1), x_step.max(1));
-    let (older, newer) = history.as_slices();
-    // Offsets count back from the newest sample (x[n] is offset 0): `newer` holds offsets
-    // 0..newer.len(), `older` the ones after. The part of `newer` at offset ≥ skip, read
-    // backward, supplies the first terms.
-    let newer_used = newer.len().saturating_sub(skip);
-    let from_newer = newer_used.div_ceil(x_step);
-    let acc = dot_reversed_strided::<S, T, W>(
-        acc,
-        taps,
-        tap_step,
-        newer.get(..newer_used).unwrap_or(&[]),
-        x_step,
-    );
-    // The next term's offset, less the samples in `newer`, is how far it lies from the end of
-    // `older`.
-    let older_skip = (skip + from_newer * x_step).saturating_sub(newer.len());
-    let older = older
-        .get(..older.len().saturating_sub(older_skip))
-        .unwrap_or(&[]);
-    let taps = taps.get(from_newer * tap_step..).unwrap_or(&[]);
-    dot_reversed_strided::<S, T, W>(acc, taps, tap_step, older, x_step)
+    let window = history.window();
+    let window = window.get(..N.saturating_sub(skip)).unwrap_or(&[]);
+    dot_reversed_strided::<S, T, W>(acc, taps, tap_step, window, x_step)
 }
 
 /// The folded linear-phase sum over a full history of N samples, h = `taps` (length N):
@@ -164,23 +140,16 @@ pub(crate) fn history_dot_folded<S: FoldMulAcc<T, W>, T: Sample, W, const N: usi
     taps: &[T],
     fold: Fold,
 ) -> S::Acc {
-    let (older, newer) = history.as_slices();
+    let window = history.window();
     let half = N / 2;
-    // In oldest→newest order H = older ++ newer, tap k pairs H[N−1−k] (x[n−k]) with H[k]. Up to
-    // k = min(len older, len newer) the pair straddles the two slices; past it both samples lie
-    // in the longer slice.
-    let straddle = older.len().min(newer.len()).min(half);
-    let (first, rest) = taps
-        .get(..half)
-        .and_then(|t| t.split_at_checked(straddle))
-        .unwrap_or((&[], &[]));
-    let acc = dot_folded::<S, T, W>(S::ACC_ZERO, first, newer, older, fold);
-    let (backward, forward) = if older.len() <= newer.len() {
-        (newer.get(..newer.len() - older.len()).unwrap_or(&[]), newer)
-    } else {
-        (older, older.get(straddle..).unwrap_or(&[]))
-    };
-    let acc = dot_folded::<S, T, W>(acc, rest, backward, forward, fold);
+    // Tap k pairs x[n−k] (the window read backward) with x[n−(N−1−k)] (read forward).
+    let acc = dot_folded::<S, T, W>(
+        S::ACC_ZERO,
+        taps.get(..half).unwrap_or(&[]),
+        window,
+        window,
+        fold,
+    );
     if N % 2 == 1 && fold == Fold::Sum {
         history_dot_strided::<S, T, W, N>(
             acc,
@@ -292,7 +261,14 @@ pub(crate) fn map_block<S: Copy, Y>(
 /// becomes an all-ones mask, so every sample costs the same on any core.
 #[inline(always)]
 pub(crate) fn count_event(counter: u32, event: bool) -> u32 {
-    let (sum, carried) = counter.overflowing_add(u32::from(event));
+    count_events(counter, u32::from(event))
+}
+
+/// `counter + events`, stopping at `u32::MAX`, without a branch (see [`count_event`]). Block
+/// paths count a block's events in a local and add them once.
+#[inline(always)]
+pub(crate) fn count_events(counter: u32, events: u32) -> u32 {
+    let (sum, carried) = counter.overflowing_add(events);
     // Opaque to the optimiser, which would otherwise select on the carry with a branch.
     sum | core::hint::black_box(0u32.wrapping_sub(u32::from(carried)))
 }

@@ -152,12 +152,11 @@ where
             result.saturated += 1;
             continue;
         }
-        let (older, newer) = history.as_slices();
-        let reference =
-            crate::kernel::dot_reversed::<f64, f64, crate::num::DefaultAcc>(0.0, ideal, newer);
-        let (_, far) = ideal.split_at_checked(newer.len()).unwrap_or((ideal, &[]));
-        let reference =
-            crate::kernel::dot_reversed::<f64, f64, crate::num::DefaultAcc>(reference, far, older);
+        let reference = crate::kernel::dot_reversed::<f64, f64, crate::num::DefaultAcc>(
+            0.0,
+            ideal,
+            history.window(),
+        );
         result.max_lsb = result.max_lsb.max((y.raw() as f64 - reference).abs());
         result.compared += 1;
     }

@@ -2,7 +2,7 @@
 
 use super::{Headroom, InputRange};
 use crate::Fir;
-use crate::num::fixed_point::finish_fixed_i64;
+use crate::num::fixed_point::finish_fixed_i32;
 use crate::num::{FixedPoint, MulAcc, Rounding, sealed::Sealed};
 use core::marker::PhantomData;
 use fixed::FixedI16;
@@ -48,7 +48,7 @@ const fn check<P: ProvenTaps>() -> bool {
 }
 
 macro_rules! proven_mul_acc {
-    ($( [$($gen:tt)*] $s:ty; )*) => {$(
+    ($( [$($gen:tt)*] $s:ty; { $($fast:tt)* } )*) => {$(
         impl<P: ProvenTaps, $($gen)*> MulAcc<i16, Acc32<P>> for $s {
             type Acc = i32;
             const ACC_ZERO: i32 = 0;
@@ -61,7 +61,7 @@ macro_rules! proven_mul_acc {
 
             #[inline(always)]
             fn finish(acc: i32, rounding: Rounding) -> (Self, bool) {
-                finish_fixed_i64(i64::from(acc), 15, rounding)
+                finish_fixed_i32(acc, rounding)
             }
 
             fn accumulator_fits(taps: &[i16]) -> bool {
@@ -74,13 +74,23 @@ macro_rules! proven_mul_acc {
                 let kept = P::INPUT.including_zero().within_word(16).clamp(raw);
                 (<$s as FixedPoint>::from_raw(kept), kept != raw)
             }
+
+            $($fast)*
         }
     )*};
 }
 
 proven_mul_acc! {
-    [] i16;
-    [Fs: LeEqU16] FixedI16<Fs>;
+    [] i16; {
+        // The dual multiply-accumulate kernel, bit-identical to the portable one (its module
+        // says how that is tested).
+        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
+        #[inline(always)]
+        fn dot_block(taps: &[i16], span: &[i16], emit: impl FnMut(i32)) {
+            crate::kernel::arm_dsp::dot_block_q15_i32(taps, span, emit);
+        }
+    }
+    [Fs: LeEqU16] FixedI16<Fs>; {}
 }
 
 impl<S, const N: usize, P> Fir<'static, S, N, i16, Acc32<P>>

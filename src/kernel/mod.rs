@@ -7,10 +7,12 @@
 //! [`portable`] holds the reference kernels, written for every target. Faster target-specific
 //! kernels, when added, sit beside it with the same names and are tested bit-identical to it.
 
+#[cfg(all(target_arch = "arm", tapline_arm_dsp))]
+pub mod arm_dsp;
 pub mod folding;
 pub mod portable;
 
-pub use portable::{dot, dot_reversed};
+pub use portable::{dot, dot_block, dot_reversed};
 
 pub use folding::FoldMulAcc;
 pub use portable::{Fold, dot_folded, dot_reversed_strided};

@@ -159,3 +159,96 @@ pub fn dot_folded<S: FoldMulAcc<T, W>, T: Sample, W>(
     }
     acc
 }
+
+/// The block form of [`dot_reversed`]: for every `i` with `i + taps.len() ≤ span.len()`, in
+/// ascending `i`, calls `emit(Σ_k taps[k] · span[i + L − 1 − k])`, L = `taps.len()`. That is
+/// `span.len() + 1 − L` outputs, each the convolution sum over `span[i .. i + L]` (a history
+/// ordered oldest→newest); no outputs when `taps` is empty or `span` shorter than `taps`.
+///
+/// Four outputs share each pass over the taps (register blocking): every tap is loaded once
+/// per four outputs and each sample once per tap step, instead of once per output.
+///
+/// **Numerics:** each output is summed from `S::ACC_ZERO` in ascending tap index, exactly as
+/// [`dot_reversed`] sums it — so the results are bit-identical to calling [`dot_reversed`] on
+/// each window, floats included. Fixed point: exact as in [`dot`].
+///
+/// ```
+/// use tapline::{kernel::dot_block, num::DefaultAcc};
+/// // h = [1, 2, 3] over 0, 1, 2, 3, 4, 5: outputs 1·2 + 2·1 + 3·0 = 4, then 10, 16, 22.
+/// let mut out = Vec::new();
+/// dot_block::<i32, i32, DefaultAcc>(&[1, 2, 3], &[0, 1, 2, 3, 4, 5], |acc| out.push(acc));
+/// assert_eq!(out, [4, 10, 16, 22]);
+/// ```
+#[inline]
+pub fn dot_block<S: MulAcc<T, W>, T: Sample, W>(
+    taps: &[T],
+    span: &[S],
+    mut emit: impl FnMut(S::Acc),
+) {
+    let len = taps.len();
+    if len == 0 {
+        return;
+    }
+    let mut rest = span;
+    while let Some(window) = rest.get(..len + 3) {
+        let [a0, a1, a2, a3] = dot_reversed_four::<S, T, W>(taps, window);
+        emit(a0);
+        emit(a1);
+        emit(a2);
+        emit(a3);
+        rest = rest.get(4..).unwrap_or(&[]);
+    }
+    while let Some(window) = rest.get(..len) {
+        emit(dot_reversed::<S, T, W>(S::ACC_ZERO, taps, window));
+        rest = rest.get(1..).unwrap_or(&[]);
+    }
+}
+
+/// Four consecutive outputs over `window` (`taps.len() + 3` samples): output m is
+/// Σ_k taps\[k\]·window\[L − 1 + m − k\].
+#[inline(always)]
+fn dot_reversed_four<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) -> [S::Acc; 4] {
+    let zero = S::ACC_ZERO;
+    let (mut a0, mut a1, mut a2, mut a3) = (zero, zero, zero, zero);
+    let Some((older, &[mut x1, mut x2, mut x3])) = window.split_last_chunk::<3>() else {
+        return [zero; 4];
+    };
+    // At tap k, output m reads window[L−1−k+m]: output 0 takes the next sample read backward
+    // from `older`, outputs 1..3 the three samples before it, held in x1..x3 and shifted one
+    // place per tap. Unrolled by four, the shifts become register renaming.
+    let (mut tap_rest, mut x_rest) = (taps, older);
+    while let (Some((h, taps_after)), Some((xs_before, y))) = (
+        tap_rest.split_first_chunk::<4>(),
+        x_rest.split_last_chunk::<4>(),
+    ) {
+        let [h0, h1, h2, h3] = *h;
+        let [y0, y1, y2, y3] = *y;
+        a0 = S::mul_acc(a0, h0, y3);
+        a1 = S::mul_acc(a1, h0, x1);
+        a2 = S::mul_acc(a2, h0, x2);
+        a3 = S::mul_acc(a3, h0, x3);
+        a0 = S::mul_acc(a0, h1, y2);
+        a1 = S::mul_acc(a1, h1, y3);
+        a2 = S::mul_acc(a2, h1, x1);
+        a3 = S::mul_acc(a3, h1, x2);
+        a0 = S::mul_acc(a0, h2, y1);
+        a1 = S::mul_acc(a1, h2, y2);
+        a2 = S::mul_acc(a2, h2, y3);
+        a3 = S::mul_acc(a3, h2, x1);
+        a0 = S::mul_acc(a0, h3, y0);
+        a1 = S::mul_acc(a1, h3, y1);
+        a2 = S::mul_acc(a2, h3, y2);
+        a3 = S::mul_acc(a3, h3, y3);
+        (x1, x2, x3) = (y0, y1, y2);
+        tap_rest = taps_after;
+        x_rest = xs_before;
+    }
+    for (&h, &y) in tap_rest.iter().zip(x_rest.iter().rev()) {
+        a0 = S::mul_acc(a0, h, y);
+        a1 = S::mul_acc(a1, h, x1);
+        a2 = S::mul_acc(a2, h, x2);
+        a3 = S::mul_acc(a3, h, x3);
+        (x1, x2, x3) = (y, x1, x2);
+    }
+    [a0, a1, a2, a3]
+}

@@ -136,4 +136,26 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     fn admit(x: Self) -> (Self, bool) {
         (x, false)
     }
+
+    /// The block sum [`Fir`](crate::Fir) runs on a staged block: for every `i` with
+    /// `i + taps.len() ≤ span.len()`, in ascending `i`, `emit(Σ_k taps[k]·span[i + L − 1 − k])`.
+    ///
+    /// The provided method is the portable [`dot_block`](crate::kernel::dot_block). An
+    /// implementation may use a target kernel instead only if it is bit-identical to it: Q15
+    /// samples with the proven 32-bit accumulator use the dual multiply-accumulate kernel in
+    /// `kernel::arm_dsp` on Armv7E-M cores.
+    ///
+    /// ```
+    /// use tapline::MulAcc;
+    /// let mut out = [0i64; 2];
+    /// let mut slots = out.iter_mut();
+    /// <i16 as MulAcc<i16>>::dot_block(&[1, 1], &[1, 2, 3], |acc| {
+    ///     if let Some(slot) = slots.next() { *slot = acc; }
+    /// });
+    /// assert_eq!(out, [3, 5]);
+    /// ```
+    #[inline(always)]
+    fn dot_block(taps: &[T], span: &[Self], emit: impl FnMut(Self::Acc)) {
+        crate::kernel::dot_block::<Self, T, W>(taps, span, emit);
+    }
 }

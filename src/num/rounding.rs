@@ -56,16 +56,29 @@ impl Rounding {
         }
         let frac = if frac > 62 { 62 } else { frac };
         let floor = acc >> frac;
+        // floor + carry(rest + offset + odd): the same integer add for every mode, so there is
+        // no branch on the value and no overflow (rest + offset + 1 < 2^(frac+1)).
+        let rest = acc & ((1i64 << frac) - 1);
+        let half = 1i64 << (frac - 1);
+        let (offset, even) = self.offset_and_parity(half);
+        floor + ((rest + offset + (floor & even)) >> frac)
+    }
+
+    /// The offset added below the kept bits, and 1 when the parity of the kept part is added
+    /// too: HalfUp (half, 0) rounds ties up, Truncate (0, 0) floors, HalfEven (half − 1, 1)
+    /// reaches the carry at a tie only when the kept part is odd.
+    #[inline(always)]
+    pub(crate) const fn offset_and_parity_i32(self, half: i32) -> (i32, i32) {
+        let (offset, even) = self.offset_and_parity(half as i64);
+        (offset as i32, even as i32)
+    }
+
+    #[inline(always)]
+    const fn offset_and_parity(self, half: i64) -> (i64, i64) {
         match self {
-            Rounding::Truncate => floor,
-            // The bit just below the kept ones is the "half" bit.
-            Rounding::HalfUp => floor + ((acc >> (frac - 1)) & 1),
-            Rounding::HalfEven => {
-                let rest = acc & ((1i64 << frac) - 1);
-                let half = 1i64 << (frac - 1);
-                let up = (rest > half) | ((rest == half) & (floor & 1 == 1));
-                floor + up as i64
-            }
+            Rounding::HalfUp => (half, 0),
+            Rounding::Truncate => (0, 0),
+            Rounding::HalfEven => (half - 1, 1),
         }
     }
 

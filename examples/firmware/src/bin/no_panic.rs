@@ -135,7 +135,7 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
         ring.push(v);
     }
     black_box(ring.latest());
-    black_box(ring.as_slices());
+    black_box(ring.window());
     black_box(GroupDelay::of(&F32_TAPS));
 }
 
