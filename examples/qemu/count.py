@@ -108,15 +108,20 @@ def main():
     for name in regions.values():
         _, ty, taps, mode = name.split("_")
         rows.setdefault((ty, int(taps)), {})[mode] = name
-    for (ty, taps) in sorted(rows, key=lambda k: (["i16", "acc32", "i32", "f32"].index(k[0]), k[1])):
+    order = ["i16", "acc32", "i32", "f32", "linphase", "dec4"]
+    for (ty, taps) in sorted(rows, key=lambda k: (order.index(k[0]), k[1])):
         modes = rows[(ty, taps)]
         per = {}
+        # A decimator by 4 gives one output per 4 inputs (per-sample calls: a quarter each).
+        factor = 4 if ty == "dec4" else 1
         for mode, outputs in (("block64", 64), ("block256", 256), ("sample", 1)):
             name = modes[mode]
-            per[mode] = counts[name] / (calls[name] * outputs * taps)
+            per[mode] = counts[name] * factor / (calls[name] * outputs * taps)
         text = sum(e - a for (a, e, _) in set().union(*(visited[m] for m in modes.values())))
         label = {"i16": "Q15 (i16), i64 acc", "acc32": "Q15, proven i32 acc",
-                 "i32": "Q31 (i32)", "f32": "f32"}[ty]
+                 "i32": "Q31 (i32)", "f32": "f32",
+                 "linphase": "Q15 linear-phase (folded), i64 acc",
+                 "dec4": "Q15 decimator by 4 (polyphase), i64 acc"}[ty]
         print(f"| {label} | {taps} | {per['block64']:.2f} | {per['block256']:.2f} | "
               f"{per['sample']:.2f} | {per['sample'] / per['block64']:.2f} | {text} | "
               f"{states.get((ty, str(taps)), '?')} |")

@@ -13,8 +13,8 @@ use core::hint::black_box;
 use cortex_m_rt::entry;
 use cortex_m_semihosting::{debug, hprintln};
 use scenario::*;
-use tapline::Fir;
 use tapline::headroom::{Acc32, InputRange, ProvenTaps};
+use tapline::{Decimator, Fir, LinearPhaseFir};
 
 #[panic_handler]
 fn panic(_: &core::panic::PanicInfo) -> ! {
@@ -32,7 +32,7 @@ macro_rules! costs {
                 Ok(f) => f,
                 Err(_) => return false,
             }
-        }, $input);
+        }, $input, $ty);
     )*};
 }
 
@@ -44,12 +44,33 @@ macro_rules! proven_costs {
             const TAPS: &'static [i16] = &q15_taps::<$n>();
             const INPUT: InputRange = InputRange::FULL;
         }
-        paste_costs!(acc32, i16, $n, Fir<'static, i16, $n, i16, Acc32<$proof>>, Fir::proven(), q15);
+        paste_costs!(acc32, i16, $n, Fir<'static, i16, $n, i16, Acc32<$proof>>, Fir::proven(), q15, i16);
+    )*};
+}
+
+/// Q15 structures: the folded linear-phase filter and the polyphase decimator by 4 (the
+/// harness divides a decimator's counts by its outputs, a quarter of its inputs).
+macro_rules! structure_costs {
+    ($( $n:literal ; )*) => {$(
+        paste_costs!(linphase, i16, $n, LinearPhaseFir<'static, i16, $n>, {
+            static TAPS: [i16; $n] = q15_taps::<$n>();
+            match LinearPhaseFir::<i16, $n>::new(&TAPS) {
+                Ok(f) => f,
+                Err(_) => return false,
+            }
+        }, q15, i16);
+        paste_costs!(dec4, i16, $n, Decimator<'static, i16, $n, 4>, {
+            static TAPS: [i16; $n] = q15_taps::<$n>();
+            match Decimator::<i16, $n, 4>::new(&TAPS) {
+                Ok(f) => f,
+                Err(_) => return false,
+            }
+        }, q15, Option<i16>);
     )*};
 }
 
 macro_rules! paste_costs {
-    ($name:ident, $ty:ident, $n:literal, $fir:ty, $make:expr, $input:ident) => {{
+    ($name:ident, $ty:ident, $n:literal, $fir:ty, $make:expr, $input:ident, $out:ty) => {{
         let mut fir: $fir = $make;
         hprintln!("state {} {} {}", stringify!($name), $n, core::mem::size_of::<$fir>());
         let mut block = [0 as $ty; 256];
@@ -59,16 +80,16 @@ macro_rules! paste_costs {
         #[inline(never)]
         #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_block64"))]
         fn block64(fir: &mut $fir, b: &mut [$ty; 64]) {
-            fir.process_in_place(b);
+            let _ = black_box(fir.process_in_place(b));
         }
         #[inline(never)]
         #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_block256"))]
         fn block256(fir: &mut $fir, b: &mut [$ty; 256]) {
-            fir.process_in_place(b);
+            let _ = black_box(fir.process_in_place(b));
         }
         #[inline(never)]
         #[unsafe(export_name = concat!("cost_", stringify!($name), "_", stringify!($n), "_sample"))]
-        fn sample(fir: &mut $fir, x: $ty) -> $ty {
+        fn sample(fir: &mut $fir, x: $ty) -> $out {
             fir.push(x)
         }
         // Warm the history so every measured output sums N real samples.
@@ -113,6 +134,11 @@ fn bench_main() -> bool {
         Proof16, 16;
         Proof64, 64;
         Proof256, 256;
+    }
+    structure_costs! {
+        16;
+        64;
+        256;
     }
     true
 }
