@@ -431,11 +431,233 @@ fn emitted_q31_and_f32_compile_and_equal_the_library() {
             "taps.rs",
         ];
         let out = tool(&args, dir.path());
-        assert_eq!(status(&out), 0, "{format}: {}", stderr(&out));
+        // Full-scale 32-bit input: the Q31 lowpass has Σ|h| > 1 (negative side lobes), so some
+        // input drives its output past the word and emit says so with exit 1, as check does;
+        // float taps have no headroom to prove.
+        let expected_status = if format == "q31" { 1 } else { 0 };
+        assert_eq!(status(&out), expected_status, "{format}: {}", stderr(&out));
         assert_eq!(
             compile_and_print(dir.path(), &dir.path().join("taps.rs")),
             expected
         );
+    }
+}
+
+/// Σ h·x over the input that drives a Q15 output highest: x = 32767 where h > 0, −32768 where
+/// h < 0 (the definition of the worst case), rounded half up to the output word.
+fn q15_worst_output(codes: &[i64]) -> i64 {
+    let acc: i64 = codes
+        .iter()
+        .map(|&h| if h > 0 { h * 32767 } else { h * -32768 })
+        .sum();
+    (acc + (1 << 14)) >> 15
+}
+
+fn values(v: &Value) -> Vec<i64> {
+    v["values"]
+        .as_array()
+        .map(|a| a.iter().filter_map(Value::as_i64).collect())
+        .unwrap_or_default()
+}
+
+#[test]
+fn design_exits_1_when_the_taps_can_overflow() {
+    let dir = scratch();
+    let lowpass = [
+        "--json",
+        "design",
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "5,50",
+        "--attenuation",
+        "60",
+    ];
+    // On the full 16-bit word the worst input, worked out here from the taps, leaves the word.
+    let full = tool(&lowpass, dir.path());
+    assert_eq!(status(&full), 1, "{}", stderr(&full));
+    let v = json(&full);
+    assert!(q15_worst_output(&values(&v)) > 32767);
+    assert_eq!(v["safe"], false);
+    // The same taps on a 12-bit right-aligned ADC cannot: exit 0.
+    let mut narrow = lowpass.to_vec();
+    narrow.extend_from_slice(&["--adc-bits", "12", "--align", "right"]);
+    let safe = tool(&narrow, dir.path());
+    assert_eq!(status(&safe), 0, "{}", stderr(&safe));
+    assert_eq!(values(&json(&safe)), values(&v));
+    assert_eq!(json(&safe)["safe"], true);
+    // The text says it too.
+    let text = tool(&lowpass[1..], dir.path());
+    assert_eq!(status(&text), 1);
+    assert!(
+        stdout(&text).contains("verdict: CAN OVERFLOW"),
+        "{}",
+        stdout(&text)
+    );
+}
+
+/// (δp, δs) of a spec, from the definitions of ripple (peak to peak) and attenuation.
+fn deviations(ripple_db: f64, attenuation_db: f64) -> (f64, f64) {
+    let g = 10f64.powf(ripple_db / 20.0);
+    ((g - 1.0) / (g + 1.0), 10f64.powf(-attenuation_db / 20.0))
+}
+
+fn silo_equiripple_bands(attenuation_db: f64) -> [tapline::design::EquirippleBand; 2] {
+    let (dp, ds) = deviations(0.1, attenuation_db);
+    [
+        tapline::design::EquirippleBand {
+            low_hz: 0.0,
+            high_hz: 5.0,
+            gain: 1.0,
+            weight: 1.0,
+        },
+        tapline::design::EquirippleBand {
+            low_hz: 50.0,
+            high_hz: 500.0,
+            gain: 0.0,
+            weight: dp / ds,
+        },
+    ]
+}
+
+#[test]
+fn equiripple_design_is_the_shortest_and_equals_the_library() {
+    let dir = scratch();
+    let spec = fs::read_to_string(repo().join(SILO_SPEC)).unwrap_or_default();
+    write(
+        dir.path(),
+        "spec.toml",
+        &format!("{spec}method = \"equiripple\"\n"),
+    );
+    let out = tool(&["--json", "design", "--spec", "spec.toml"], dir.path());
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["method"], "equiripple");
+    assert_eq!(v["quantized"]["meets_spec"], true);
+    let len = v["taps"].as_u64().unwrap_or(0) as usize;
+    let margin = v["margin_db"].as_f64().unwrap_or(f64::NAN);
+    // The library's equiripple at that length, with the spec's weights, quantized: the same
+    // codes.
+    let bands = silo_equiripple_bands(60.0 + margin);
+    let float = tapline::design::equiripple(len, &bands, 1000.0)
+        .unwrap_or_else(|e| panic!("library equiripple: {e}"));
+    let mut q = vec![0i16; len];
+    tapline::design::quantize(&float.taps, &mut q).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(
+        values(&v),
+        q.iter().map(|&c| i64::from(c)).collect::<Vec<_>>()
+    );
+    // Shortest: one tap fewer misses the (margin-raised) spec it was searched for.
+    let stricter = tapline::design::Spec {
+        stopband_attenuation_db: 60.0 + margin,
+        ..silo_spec()
+    };
+    let shorter =
+        tapline::design::equiripple(len - 1, &bands, 1000.0).unwrap_or_else(|e| panic!("{e}"));
+    let m = stricter
+        .measure(&shorter.taps)
+        .unwrap_or_else(|e| panic!("{e}"));
+    assert!(!m.meets(), "{} taps would do", len - 1);
+    // Equal ripple: the float design's pass and stop deviations stand in the weights' ratio.
+    let (dp, ds) = deviations(
+        v["float"]["ripple_db"].as_f64().unwrap_or(f64::NAN),
+        v["float"]["attenuation_db"].as_f64().unwrap_or(f64::NAN),
+    );
+    let ratio = dp / ds / bands[1].weight;
+    assert!((ratio - 1.0).abs() < 0.02, "{ratio}");
+    // Common practice: for the same spec an equiripple filter is shorter than a window design.
+    assert!(len < library_q15().len(), "{len}");
+}
+
+#[test]
+fn equiripple_refusals_are_one_line() {
+    let dir = scratch();
+    let flag_cases: &[(&[&str], &str)] = &[
+        (
+            &["--band", "highpass", "--edges", "50,100", "--length", "40"],
+            "command line: --length: expected an odd length for a highpass with method equiripple, found 40",
+        ),
+        (
+            &[
+                "--band",
+                "bandstop",
+                "--edges",
+                "40,48,52,60",
+                "--length",
+                "90",
+            ],
+            "command line: --length: expected an odd length for a bandstop",
+        ),
+        (
+            &["--band", "lowpass", "--edges", "5,50", "--length", "2"],
+            "command line: --length: expected an equiripple length in 3..=1024 taps, found 2",
+        ),
+    ];
+    for (args, message) in flag_cases {
+        let mut all = vec![
+            "emit",
+            "--out",
+            "taps.rs",
+            "--rate",
+            "1000",
+            "--attenuation",
+            "40",
+            "--method",
+            "equiripple",
+        ];
+        all.extend_from_slice(args);
+        let out = tool(&all, dir.path());
+        assert_eq!(status(&out), 2, "{args:?}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{args:?}: {err}");
+        assert_files(dir.path(), &[]);
+    }
+    // An odd length is accepted for the same highpass and gives that many taps.
+    let out = tool(
+        &[
+            "--json",
+            "design",
+            "--band",
+            "highpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "50,100",
+            "--attenuation",
+            "40",
+            "--method",
+            "equiripple",
+            "--length",
+            "41",
+        ],
+        dir.path(),
+    );
+    assert_eq!(json(&out)["taps"], 41, "{}", stderr(&out));
+    let good = "band = \"lowpass\"\nsample_rate_hz = 1000\nedges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"q15\"\n";
+    let toml_cases: &[(&str, &str)] = &[
+        (
+            "method = \"remez\"\n",
+            "spec.toml:7:10: expected method = \"window\"",
+        ),
+        (
+            "length = 41\n",
+            "spec.toml:7:10: expected a length only with method equiripple",
+        ),
+        (
+            "method = \"equiripple\"\nlength = 2000\n",
+            "spec.toml:8:10: expected an equiripple length in 3..=1024",
+        ),
+    ];
+    for (extra, message) in toml_cases {
+        write(dir.path(), "spec.toml", &format!("{good}{extra}"));
+        let out = tool(&["design", "--spec", "spec.toml"], dir.path());
+        assert_eq!(status(&out), 2, "{extra}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{extra}: {err}");
     }
 }
 
