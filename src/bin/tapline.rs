@@ -9,6 +9,8 @@
 
 #[path = "tapline/atomic.rs"]
 mod atomic;
+#[path = "tapline/capture.rs"]
+mod capture;
 #[path = "tapline/check.rs"]
 mod check;
 #[path = "tapline/design.rs"]
@@ -17,6 +19,8 @@ mod design;
 mod failure;
 #[path = "tapline/plot.rs"]
 mod plot;
+#[path = "tapline/progress.rs"]
+mod progress;
 #[path = "tapline/replay.rs"]
 mod replay;
 #[path = "tapline/report.rs"]
@@ -116,11 +120,36 @@ struct PlotArgs {
     out: PathBuf,
 }
 
+/// Where the samples are in a capture.
+#[derive(Args, Clone)]
+struct CaptureArgs {
+    /// Which column holds the samples (1 = first), for a single channel.
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..), conflicts_with = "channels")]
+    column: u32,
+    /// Or the names of the columns to filter, comma-separated, from the header row: one
+    /// channel each, each with its own filter state.
+    #[arg(long, value_name = "NAME[,NAME...]", value_delimiter = ',')]
+    channels: Vec<String>,
+    /// The first row is a header: skip it (implied by --channels).
+    #[arg(long)]
+    header: bool,
+}
+
+impl CaptureArgs {
+    fn pick(&self) -> capture::Pick {
+        if self.channels.is_empty() {
+            capture::Pick::Column(self.column as usize)
+        } else {
+            capture::Pick::Names(self.channels.clone())
+        }
+    }
+}
+
 #[derive(Args)]
 struct ReplayArgs {
-    /// The capture: CSV or plain text, one sample per row (or one column of several).
+    /// The capture: CSV or plain text, one row per sample instant.
     capture: PathBuf,
-    /// The taps, as a table (see `check`).
+    /// The taps, as a table (see `check`; f32 tables hold real values).
     #[arg(
         long,
         value_name = "FILE",
@@ -131,52 +160,38 @@ struct ReplayArgs {
     /// Or design the taps from this TOML spec (its format and ADC are used).
     #[arg(long, value_name = "FILE", conflicts_with_all = ["format", "written", "adc_bits"])]
     spec: Option<PathBuf>,
-    /// Tap format of the table.
+    /// Tap format of the table (q15, q31, or f32: the filter then runs in f32 and errors are
+    /// in the capture's own unit).
     #[arg(long, value_enum)]
     format: Option<Format>,
-    /// How the table's numbers are written.
+    /// How the table's numbers are written (default: codes for q15/q31, real for f32).
     #[arg(long, value_enum)]
     written: Option<Written>,
     #[command(flatten)]
     adc: AdcArgs,
-    /// Output rounding of the filter.
+    /// Output rounding of the fixed-point filter.
     #[arg(long, value_enum, default_value = "half-up")]
     rounding: RoundingArg,
-    /// Which column holds the samples (1 = first).
-    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..))]
-    column: u32,
-    /// The first row is a header: skip it.
-    #[arg(long)]
-    header: bool,
-    /// Write sample, input, fixed, reference and error (LSB) per row to this CSV file.
+    #[command(flatten)]
+    capture_args: CaptureArgs,
+    /// Write, per row, the sample index and for each channel its input, filter output,
+    /// float64 reference and error to this CSV file.
     #[arg(long, value_name = "FILE")]
     out: Option<PathBuf>,
 }
 
 fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
-    let (codes, ideal, format, adc) = match (&a.spec, &a.taps) {
+    let (taps, ideal, format, adc) = match (&a.spec, &a.taps) {
         (Some(path), _) => {
             let chosen = spec::SpecArgs::from_file(path)?;
             let (format, adc) = (chosen.format, chosen.adc);
             let designed = design::design(chosen)?;
-            match designed.taps {
-                design::Taps::Fixed(codes) => (codes, designed.ideal, format, adc),
-                design::Taps::Float(_) => {
-                    return Err(Failure::file(
-                        path,
-                        "replay compares fixed point with float64: expected format q15 or q31",
-                    ));
-                }
-            }
+            (designed.taps, designed.ideal, format, adc)
         }
         (None, Some(path)) => {
             let format = a.format.unwrap_or(Format::Q15);
-            let table = taps::read(path, format, a.written.unwrap_or(Written::Codes))?;
-            let ideal = match table.ideal {
-                Some(ideal) => ideal,
-                None => replay::codes_as_reals(&table.codes, format),
-            };
-            (table.codes, ideal, format, a.adc.adc())
+            let (taps, ideal) = table_taps(path, format, a.written)?;
+            (taps, ideal, format, a.adc.adc())
         }
         (None, None) => {
             return Err(Failure::argument(
@@ -185,23 +200,43 @@ fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
             ));
         }
     };
-    if format == Format::F32 {
-        return Err(Failure::argument(
-            "--format",
-            "replay compares fixed point with float64: expected q15 or q31",
-        ));
-    }
     Ok(replay::Request {
         capture: a.capture.clone(),
-        column: a.column as usize,
-        header: a.header,
-        codes,
+        pick: a.capture_args.pick(),
+        header: a.capture_args.header,
+        taps,
         ideal,
         format,
         adc,
         rounding: a.rounding.into(),
         out: a.out.clone(),
     })
+}
+
+/// A tap table as the filter runs it and the float taps of its reference: fixed-point codes
+/// (and their real values when the table held real values), or f32 values.
+fn table_taps(
+    path: &std::path::Path,
+    format: Format,
+    written: Option<Written>,
+) -> Result<(design::Taps, Vec<f64>), Failure> {
+    if format == Format::F32 {
+        if written == Some(Written::Codes) {
+            return Err(Failure::argument(
+                "--written",
+                "f32 tables hold real values: expected --written real",
+            ));
+        }
+        let ideal = taps::read_reals(path)?;
+        let float = ideal.iter().map(|&h| h as f32).collect();
+        return Ok((design::Taps::Float(float), ideal));
+    }
+    let table = taps::read(path, format, written.unwrap_or(Written::Codes))?;
+    let ideal = match table.ideal {
+        Some(ideal) => ideal,
+        None => replay::codes_as_reals(&table.codes, format),
+    };
+    Ok((design::Taps::Fixed(table.codes), ideal))
 }
 
 #[derive(Args)]
@@ -233,7 +268,13 @@ fn run(cli: &Cli) -> Result<report::Report, Failure> {
             design::emit(&designed, &a.out, &a.name, &command_line())
         }
         Command::Plot(a) => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
-        Command::Replay(a) => replay::run(&replay_request(a)?),
+        Command::Replay(a) => {
+            let (replayed, out) = replay::run(&replay_request(a)?)?;
+            if let Some(out) = out {
+                out.commit()?;
+            }
+            Ok(replayed.report())
+        }
         Command::Check(a) => check::run(&check::Request {
             table: a.table.clone(),
             format: a.format,
