@@ -1483,13 +1483,186 @@ fn plot_draws_the_response_and_one_marker_per_tap() {
     assert_eq!(json(&out)["file"], "silo.svg");
     let svg = fs::read_to_string(dir.path().join("silo.svg")).unwrap_or_default();
     assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
-    assert!(svg.contains("magnitude: float64 and Q15 taps"), "no title");
-    assert!(svg.contains("passband, 0..5 Hz"), "no passband zoom");
+    assert!(
+        svg.contains(&format!(
+            "lowpass FIR, {} Q15 taps: design review",
+            library_q15().len()
+        )),
+        "no title"
+    );
+    assert!(svg.contains("magnitude response"), "no magnitude panel");
+    assert!(svg.contains("passband close-up"), "no passband zoom");
     assert!(svg.contains("impulse response"), "no impulse response");
+    assert!(
+        svg.contains("float64 taps") && svg.contains("Q15 taps"),
+        "no legend"
+    );
+    assert!(svg.contains("attenuation limit, -60 dB"), "no limit");
+    assert!(svg.contains("SAFE"), "no verdict in the header");
     assert_eq!(svg.matches("<circle").count(), library_q15().len());
     // Two bands shaded (pass and stop) as filled rectangles beyond the background.
     assert!(svg.matches("<rect").count() >= 3);
     assert_files(dir.path(), &["silo.svg"]);
+}
+
+/// The centres of the SVG's circles, in drawing order.
+fn circles(svg: &str) -> Vec<(f64, f64)> {
+    let attr = |tag: &str, name: &str| -> f64 {
+        tag.split_once(&format!(" {name}=\""))
+            .and_then(|(_, rest)| rest.split_once('"'))
+            .and_then(|(v, _)| v.parse().ok())
+            .unwrap_or(f64::NAN)
+    };
+    svg.split("<circle")
+        .skip(1)
+        .map(|tag| (attr(tag, "cx"), attr(tag, "cy")))
+        .collect()
+}
+
+#[test]
+fn plot_of_a_tap_table_draws_its_taps() {
+    let dir = scratch();
+    // Not symmetric, with a wide spread of values: the markers must sit where these codes are.
+    let codes = [12000i64, -20000, 31000, 4000, -9000, 0, 15000];
+    write(
+        dir.path(),
+        "table.csv",
+        &codes
+            .iter()
+            .map(|c| c.to_string())
+            .collect::<Vec<_>>()
+            .join(","),
+    );
+    let out = tool(
+        &[
+            "--json",
+            "plot",
+            "--taps",
+            "table.csv",
+            "--rate",
+            "8000",
+            "--out",
+            "table.svg",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    assert_eq!(v["taps"], codes.len());
+    assert_eq!(v["format"], "Q15");
+    let svg = fs::read_to_string(dir.path().join("table.svg")).unwrap_or_default();
+    assert!(svg.contains("tap table table.csv: 7 Q15 taps"), "no title");
+    assert!(svg.contains("not symmetric"), "symmetry not reported");
+    assert!(
+        !svg.contains("float64 taps"),
+        "a table of codes has no float taps to draw"
+    );
+    let marks = circles(&svg);
+    assert_eq!(marks.len(), codes.len());
+    // One marker per tap, left to right, at heights proportional to the codes (SVG y grows
+    // downward; pixel positions are rounded, so within a pixel).
+    let (hi, lo) = (2, 1); // the largest and smallest codes
+    let scale = (marks[hi].1 - marks[lo].1) / (codes[hi] - codes[lo]) as f64;
+    assert!(scale < 0.0);
+    for (k, &(x, y)) in marks.iter().enumerate() {
+        let expected = marks[lo].1 + scale * (codes[k] - codes[lo]) as f64;
+        assert!(
+            (y - expected).abs() <= 1.5,
+            "tap {k}: y {y}, expected {expected}"
+        );
+        if k > 0 {
+            assert!(x > marks[k - 1].0);
+        }
+    }
+    assert_files(dir.path(), &["table.csv", "table.svg"]);
+}
+
+#[test]
+fn plot_of_a_real_table_against_a_spec_measures_it() {
+    let dir = scratch();
+    // The library's float Kaiser design for the silo spec, written as real values: quantized
+    // by the tool, it is the Q15 table the design would ship (margin 0 here, so it may miss).
+    let float = match silo_spec().kaiser::<2048>() {
+        Ok(d) => d.taps.to_vec(),
+        Err(e) => panic!("{e}"),
+    };
+    write(
+        dir.path(),
+        "real.txt",
+        &float.iter().map(|h| format!("{h:e}\n")).collect::<String>(),
+    );
+    let spec = repo().join(SILO_SPEC).display().to_string();
+    let out = tool(
+        &[
+            "--json",
+            "plot",
+            "--taps",
+            "real.txt",
+            "--written",
+            "real",
+            "--spec",
+            &spec,
+            "--out",
+            "real.svg",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let v = json(&out);
+    // The measurement of the quantized table, from the library directly.
+    let mut q = vec![0i16; float.len()];
+    tapline::design::quantize(&float, &mut q).unwrap_or_else(|e| panic!("{e}"));
+    let m = silo_spec().measure(&q).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(v["measured"]["meets_spec"], m.meets());
+    let reported = v["measured"]["attenuation_db"].as_f64().unwrap_or(f64::NAN);
+    assert!(
+        (reported - m.stopband_attenuation_db).abs() < 1e-9,
+        "{reported}"
+    );
+    let svg = fs::read_to_string(dir.path().join("real.svg")).unwrap_or_default();
+    assert!(svg.contains("float64 taps") && svg.contains("passband") && svg.contains("stopband"));
+    assert!(svg.contains("symmetric: linear phase"));
+    assert_eq!(circles(&svg).len(), float.len());
+    // f32 tables hold real values and plot too.
+    write(dir.path(), "f32.txt", "0.25 0.5 0.25\n");
+    let out = tool(
+        &[
+            "plot", "--taps", "f32.txt", "--format", "f32", "--rate", "100", "--out", "f32.svg",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    assert!(stdout(&out).contains("3 f32 taps"), "{}", stdout(&out));
+}
+
+#[test]
+fn plot_of_a_bad_table_or_no_rate_writes_nothing() {
+    let dir = scratch();
+    write(dir.path(), "t.txt", "100\n2x0\n");
+    let cases: &[(&[&str], &str)] = &[
+        (
+            &[
+                "plot", "--taps", "t.txt", "--rate", "1000", "--out", "t.svg",
+            ],
+            "t.txt:2:1: expected an integer code",
+        ),
+        (
+            &["plot", "--taps", "t.txt", "--out", "t.svg"],
+            "command line: --rate: expected a sample rate in Hz (or a spec)",
+        ),
+        (
+            &["plot", "--taps", "t.txt", "--rate", "0", "--out", "t.svg"],
+            "command line: --rate: expected a positive sample rate",
+        ),
+    ];
+    for (args, message) in cases {
+        let out = tool(args, dir.path());
+        assert_eq!(status(&out), 2, "{args:?}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{args:?}: {err}");
+        assert_files(dir.path(), &["t.txt"]);
+    }
 }
 
 #[test]

@@ -61,8 +61,9 @@ enum Command {
     /// Design as `design` does, then write the taps as a Rust source file (a `pub static` array
     /// whose doc comment records the spec, the figures and the command).
     Emit(EmitArgs),
-    /// Design as `design` does, then draw an SVG: magnitude in dB of the float64 and quantized
-    /// taps with the bands shaded, the passband close up, and the impulse response.
+    /// Draw an SVG for a design review: magnitude in dB of the float and quantized taps with the
+    /// bands shaded, the passband close up, and the impulse response — of a design from a spec,
+    /// or of an existing tap table (--taps, read as `check` reads it).
     Plot(PlotArgs),
     /// Stream a recorded capture (CSV of raw sample codes) through the bit-exact fixed-point
     /// filter and a float64 reference: largest difference in LSB against the error bound, SNR,
@@ -115,9 +116,67 @@ struct EmitArgs {
 struct PlotArgs {
     #[command(flatten)]
     spec: spec::SpecArgs,
+    /// Plot this tap table instead of a design (text or CSV, as `check` reads it), in
+    /// --format (or the spec file's format). A spec (file or flags) adds its bands and limits;
+    /// --rate alone is enough for the axes.
+    #[arg(long, value_name = "FILE")]
+    taps: Option<PathBuf>,
+    /// How the table's numbers are written (default: codes for q15/q31, real for f32).
+    #[arg(long, value_enum, requires = "taps")]
+    written: Option<Written>,
     /// The SVG file to write (atomically).
     #[arg(long, value_name = "FILE")]
     out: PathBuf,
+}
+
+fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, Failure> {
+    let s = &a.spec;
+    let chosen = if s.spec.is_some() || s.band.is_some() {
+        Some(s.chosen()?)
+    } else {
+        None
+    };
+    let (format, adc, rate) = match &chosen {
+        Some(c) => (c.format, c.adc, c.spec.sample_rate_hz),
+        None => {
+            let rate = s.rate.ok_or_else(|| {
+                Failure::argument(
+                    "--rate",
+                    "expected a sample rate in Hz (or a spec) for the frequency axis",
+                )
+            })?;
+            if !(rate.is_finite() && rate > 0.0) {
+                return Err(Failure::argument(
+                    "--rate",
+                    format!("expected a positive sample rate in Hz, found {rate}"),
+                ));
+            }
+            (
+                s.format,
+                AdcArgs {
+                    adc_bits: s.adc_bits,
+                    align: s.align,
+                }
+                .adc(),
+                rate,
+            )
+        }
+    };
+    let (taps, ideal) = table_taps(table, format, a.written)?;
+    let float = match (&taps, a.written) {
+        (design::Taps::Float(_), _) | (_, Some(Written::Real)) => Some(ideal),
+        _ => None,
+    };
+    plot::plot_table(&plot::TableRequest {
+        table: table.to_path_buf(),
+        format,
+        taps,
+        float,
+        spec: chosen,
+        sample_rate_hz: rate,
+        adc,
+        out: a.out.clone(),
+    })
 }
 
 /// Where the samples are in a capture.
@@ -267,7 +326,10 @@ fn run(cli: &Cli) -> Result<report::Report, Failure> {
             let designed = design::design(a.spec.chosen()?)?;
             design::emit(&designed, &a.out, &a.name, &command_line())
         }
-        Command::Plot(a) => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
+        Command::Plot(a) => match &a.taps {
+            Some(table) => plot_table(a, table),
+            None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
+        },
         Command::Replay(a) => {
             let (replayed, out) = replay::run(&replay_request(a)?)?;
             if let Some(out) = out {
