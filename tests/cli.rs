@@ -1469,6 +1469,216 @@ fn replay_draws_no_progress_bar_when_stderr_is_not_a_terminal() {
     assert!(screen.contains("200000 rows"), "{screen}");
 }
 
+// ---- prepare (the whole job) ---------------------------------------------------------------
+
+/// The raw codes of the invented capture's adc_code column (from the file, as the tool reads
+/// it: `#` lines skipped, the header row skipped).
+fn silo_capture_codes() -> Vec<i64> {
+    let text =
+        fs::read_to_string(repo().join("examples/tool/silo_capture.csv")).unwrap_or_default();
+    text.lines()
+        .filter(|l| !l.starts_with('#'))
+        .skip(1)
+        .filter_map(|l| l.split(',').nth(1).and_then(|v| v.trim().parse().ok()))
+        .collect()
+}
+
+#[test]
+fn prepare_writes_the_four_files_of_the_job() {
+    let dir = scratch();
+    let spec = repo().join(SILO_SPEC).display().to_string();
+    let capture = repo()
+        .join("examples/tool/silo_capture.csv")
+        .display()
+        .to_string();
+    let out = tool(
+        &[
+            "--json",
+            "prepare",
+            "--spec",
+            &spec,
+            "--capture",
+            &capture,
+            "--channels",
+            "adc_code",
+            "--out-dir",
+            "job",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    assert_eq!(stderr(&out), "", "no progress bar on a pipe");
+    let v = json(&out);
+    let job = dir.path().join("job");
+    assert_files(
+        &job,
+        &["filtered.csv", "report.txt", "response.svg", "taps.rs"],
+    );
+    // taps.rs compiles and holds the library's design for the spec.
+    let q = library_q15();
+    let printed = compile_and_print(dir.path(), &job.join("taps.rs"));
+    assert_eq!(printed, q.iter().map(|c| c.to_string()).collect::<Vec<_>>());
+    // filtered.csv is the capture through those taps, output for output (exact model).
+    let xs = silo_capture_codes();
+    assert_eq!(xs.len(), 2000);
+    let taps: Vec<i64> = q.iter().map(|&c| i64::from(c)).collect();
+    let filtered = fs::read_to_string(job.join("filtered.csv")).unwrap_or_default();
+    let as_f64 = |v: &[i64]| v.iter().map(|&x| x as f64).collect::<Vec<_>>();
+    assert_eq!(named_column(&filtered, "adc_code_input"), as_f64(&xs));
+    assert_eq!(
+        named_column(&filtered, "adc_code_fixed"),
+        as_f64(&q15_model(&taps, &xs).0)
+    );
+    // The report states the figures the JSON carries.
+    let report = fs::read_to_string(job.join("report.txt")).unwrap_or_default();
+    let replay = &v["replay"];
+    let channel = &replay["channels"][0];
+    for needle in [
+        format!("length: {} taps", q.len()),
+        format!("group delay: {} samples", (q.len() - 1) / 2),
+        String::from("float64 taps: ripple"),
+        String::from("Q15 taps: ripple"),
+        String::from("verdict: SAFE"),
+        format!(
+            "max |Q15 - float64|: {:.3} LSB; error bound {:.3} LSB: within",
+            channel["max_error"].as_f64().unwrap_or(f64::NAN),
+            replay["error_bound"].as_f64().unwrap_or(f64::NAN)
+        ),
+        format!(
+            "SNR of the Q15 output against float64: {:.2} dB",
+            channel["snr_db"].as_f64().unwrap_or(f64::NAN)
+        ),
+        String::from("saturated outputs: 0"),
+        format!(
+            "{} bits of the {} the worst case needs",
+            channel["accumulator_bits_used"], channel["accumulator_bits_worst_case"]
+        ),
+        String::from("PASS (exit 0)"),
+        String::from("taps.rs "),
+        String::from("response.svg "),
+        String::from("filtered.csv "),
+    ] {
+        assert!(
+            report.contains(&needle),
+            "report lacks {needle:?}:\n{report}"
+        );
+    }
+    assert_eq!(v["status"], 0);
+    assert_eq!(v["design"]["taps"], q.len());
+    // The plot is the design's.
+    let svg = fs::read_to_string(job.join("response.svg")).unwrap_or_default();
+    assert_eq!(svg.matches("<circle").count(), q.len());
+}
+
+#[test]
+fn prepare_exits_1_when_the_taps_can_overflow() {
+    let dir = scratch();
+    // The silo spec on the full 16-bit word: Σ|h| > 1, so some input could saturate the
+    // output, however quietly the capture behaves.
+    let spec = fs::read_to_string(repo().join(SILO_SPEC)).unwrap_or_default();
+    write(
+        dir.path(),
+        "full.toml",
+        &spec
+            .replace("adc_bits = 12\n", "")
+            .replace("adc_align = \"right\"\n", ""),
+    );
+    let capture = repo()
+        .join("examples/tool/silo_capture.csv")
+        .display()
+        .to_string();
+    let out = tool(
+        &[
+            "prepare",
+            "--spec",
+            "full.toml",
+            "--capture",
+            &capture,
+            "--column",
+            "2",
+            "--header",
+            "--out-dir",
+            "job",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
+    let report = fs::read_to_string(dir.path().join("job/report.txt")).unwrap_or_default();
+    assert!(report.contains("verdict: CAN OVERFLOW"), "{report}");
+    assert!(
+        report.contains("FAIL (exit 1): the headroom proof says some input in range can overflow"),
+        "{report}"
+    );
+    // The replay itself stayed within its bound: the failure is the proof's.
+    assert!(report.contains(": within"), "{report}");
+}
+
+#[test]
+fn prepare_on_bad_input_writes_nothing() {
+    let spec = repo().join(SILO_SPEC).display().to_string();
+    let cases: &[(&str, &str, &[&str], &str)] = &[
+        (
+            "ragged.csv",
+            "time_s,adc_code\n0,1\n0.001,2\n0.002\n",
+            &["--channels", "adc_code"],
+            "ragged.csv:4:6: expected 2 field(s) as on line 1, found 1",
+        ),
+        (
+            "names.csv",
+            "time_s,adc_code\n0,1\n",
+            &["--channels", "load"],
+            "names.csv:1:1: expected a column named \"load\" in the header",
+        ),
+        (
+            "range.csv",
+            "time_s,adc_code\n0,1\n0.001,4000\n",
+            &["--channels", "adc_code"],
+            "range.csv:3:7: expected a sample code in -2048..=2047",
+        ),
+    ];
+    for (name, text, extra, message) in cases {
+        let dir = scratch();
+        write(dir.path(), name, text);
+        let mut args = vec![
+            "prepare",
+            "--spec",
+            &spec,
+            "--capture",
+            name,
+            "--out-dir",
+            "job",
+        ];
+        args.extend_from_slice(extra);
+        let out = tool(&args, dir.path());
+        assert_eq!(status(&out), 2, "{name}");
+        let err = stderr(&out);
+        assert_eq!(err.lines().count(), 1, "{err}");
+        assert!(err.contains(message), "{name}: {err}");
+        // Not even the directory it would have made.
+        assert_files(dir.path(), &[name]);
+    }
+    // A bad spec: nothing, either; an existing directory stays as it was.
+    let dir = scratch();
+    fs::create_dir(dir.path().join("job")).unwrap_or_else(|e| panic!("{e}"));
+    write(dir.path(), "c.csv", "1\n2\n");
+    write(dir.path(), "bad.toml", "band = \"lowpass\"\n");
+    let out = tool(
+        &[
+            "prepare",
+            "--spec",
+            "bad.toml",
+            "--capture",
+            "c.csv",
+            "--out-dir",
+            "job",
+        ],
+        dir.path(),
+    );
+    assert_eq!(status(&out), 2);
+    assert!(stderr(&out).contains("bad.toml:1:1:"), "{}", stderr(&out));
+    assert_files(&dir.path().join("job"), &[]);
+}
+
 // ---- plot ----------------------------------------------------------------------------------
 
 #[test]
@@ -1722,7 +1932,7 @@ fn usage_mistakes_are_one_line_and_exit_2() {
     assert_files(dir.path(), &[]);
     let help = tool(&["--help"], dir.path());
     assert_eq!(status(&help), 0);
-    for command in ["design", "emit", "check", "replay", "plot"] {
+    for command in ["prepare", "design", "emit", "check", "replay", "plot"] {
         assert!(stdout(&help).contains(command), "{command}");
     }
 }

@@ -19,6 +19,8 @@ mod design;
 mod failure;
 #[path = "tapline/plot.rs"]
 mod plot;
+#[path = "tapline/prepare.rs"]
+mod prepare;
 #[path = "tapline/progress.rs"]
 mod progress;
 #[path = "tapline/replay.rs"]
@@ -55,6 +57,11 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// The whole job: design taps from a spec, prove their headroom, replay a capture through
+    /// them, and write taps.rs, response.svg, report.txt and filtered.csv into one directory.
+    /// Exit 0 when the taps are safe and the replay stayed within the error bound, 1 otherwise,
+    /// 2 on bad input (and then no file is written).
+    Prepare(PrepareArgs),
     /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, and report the
     /// length, group delay, measured ripple and attenuation, and the headroom verdict.
     Design(DesignArgs),
@@ -108,6 +115,23 @@ struct EmitArgs {
     #[arg(long, value_name = "FILE")]
     out: PathBuf,
     /// Name of the static array.
+    #[arg(long, default_value = "TAPS")]
+    name: String,
+}
+
+#[derive(Args)]
+struct PrepareArgs {
+    #[command(flatten)]
+    spec: spec::SpecArgs,
+    /// The recorded capture to replay through the taps (CSV or plain text).
+    #[arg(long, value_name = "FILE")]
+    capture: PathBuf,
+    #[command(flatten)]
+    capture_args: CaptureArgs,
+    /// The directory for the four files (created if missing).
+    #[arg(long, value_name = "DIR")]
+    out_dir: PathBuf,
+    /// Name of the static array in taps.rs.
     #[arg(long, default_value = "TAPS")]
     name: String,
 }
@@ -320,6 +344,22 @@ struct CheckArgs {
 
 fn run(cli: &Cli) -> Result<report::Report, Failure> {
     match &cli.command {
+        Command::Prepare(a) => {
+            design::check_name(&a.name)?;
+            prepare::run(&prepare::Request {
+                chosen: a.spec.chosen()?,
+                spec_source: match &a.spec.spec {
+                    Some(path) => path.display().to_string(),
+                    None => String::from("command-line flags"),
+                },
+                capture: a.capture.clone(),
+                pick: a.capture_args.pick(),
+                header: a.capture_args.header,
+                dir: a.out_dir.clone(),
+                name: a.name.clone(),
+                command: command_line(),
+            })
+        }
         Command::Design(a) => Ok(design::report(&design::design(a.spec.chosen()?)?)),
         Command::Emit(a) => {
             design::check_name(&a.name)?;

@@ -47,6 +47,7 @@ pub struct Designed {
     pub proof: Option<(Headroom, ErrorBound)>,
 }
 
+#[derive(Clone)]
 pub enum Taps {
     Fixed(Codes),
     Float(Vec<f32>),

@@ -421,11 +421,16 @@ fn draw(f: &Figure, svg: &mut String) -> Result<(), Box<dyn std::error::Error>> 
     Ok(())
 }
 
-/// Draws `figure` and writes it to `out` atomically.
-pub fn write(figure: &Figure, out: &Path) -> Result<(), Failure> {
+/// The SVG text of `figure`.
+pub fn render(figure: &Figure) -> Result<String, Failure> {
     let mut svg = String::new();
     draw(figure, &mut svg).map_err(|e| Failure::plain(format!("plot: {e}")))?;
-    atomic::write(out, svg.as_bytes())
+    Ok(svg)
+}
+
+/// Draws `figure` and writes it to `out` atomically.
+pub fn write(figure: &Figure, out: &Path) -> Result<(), Failure> {
+    atomic::write(out, render(figure)?.as_bytes())
 }
 
 /// The shipped taps of a design as real values.
