@@ -47,6 +47,14 @@ fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
     path
 }
 
+/// The run failed on bad input: exit 2 and exactly one line on stderr that contains `message`.
+fn assert_bad_input(out: &Output, message: &str, what: &str) {
+    assert_eq!(status(out), 2, "{what}: {}", stdout(out));
+    let err = stderr(out);
+    assert_eq!(err.lines().count(), 1, "{what}: {err}");
+    assert!(err.contains(message), "{what}: {err}");
+}
+
 /// The directory holds exactly these file names (nothing partial, no temporary files).
 fn assert_files(dir: &Path, expected: &[&str]) {
     let mut names: Vec<String> = fs::read_dir(dir)
@@ -232,10 +240,7 @@ fn check_bad_tables_fail_with_place_and_write_nothing() {
         let mut args = vec!["check", name, "--worst-case", "worst.csv"];
         args.extend_from_slice(extra);
         let out = tool(&args, dir.path());
-        assert_eq!(status(&out), 2, "{name}: {}", stdout(&out));
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{name}: {err}");
-        assert!(err.contains(message), "{name}: {err}");
+        assert_bad_input(&out, message, name);
         assert_files(dir.path(), &[name]);
     }
 }
@@ -609,10 +614,7 @@ fn equiripple_refusals_are_one_line() {
         ];
         all.extend_from_slice(args);
         let out = tool(&all, dir.path());
-        assert_eq!(status(&out), 2, "{args:?}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{args:?}: {err}");
+        assert_bad_input(&out, message, &format!("{args:?}"));
         assert_files(dir.path(), &[]);
     }
     // An odd length is accepted for the same highpass and gives that many taps.
@@ -654,10 +656,7 @@ fn equiripple_refusals_are_one_line() {
     for (extra, message) in toml_cases {
         write(dir.path(), "spec.toml", &format!("{good}{extra}"));
         let out = tool(&["design", "--spec", "spec.toml"], dir.path());
-        assert_eq!(status(&out), 2, "{extra}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{extra}: {err}");
+        assert_bad_input(&out, message, extra);
     }
 }
 
@@ -806,10 +805,7 @@ fn bad_specs_fail_with_place_and_write_nothing() {
         let mut all = vec!["emit", "--out", "taps.rs"];
         all.extend_from_slice(args);
         let out = tool(&all, dir.path());
-        assert_eq!(status(&out), 2, "{args:?}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{args:?}: {err}");
+        assert_bad_input(&out, message, &format!("{args:?}"));
         assert_files(dir.path(), &[]);
     }
 
@@ -860,10 +856,7 @@ fn bad_specs_fail_with_place_and_write_nothing() {
             &["emit", "--spec", "spec.toml", "--out", "taps.rs"],
             dir.path(),
         );
-        assert_eq!(status(&out), 2, "{to}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{to}: {err}");
+        assert_bad_input(&out, message, to);
         assert_files(dir.path(), &["spec.toml"]);
     }
 }
@@ -1121,10 +1114,7 @@ fn replay_bad_captures_fail_with_place_and_write_nothing() {
             ],
             dir.path(),
         );
-        assert_eq!(status(&out), 2, "{name}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{name}: {err}");
+        assert_bad_input(&out, message, name);
         assert_files(dir.path(), &["taps.txt", name]);
     }
 }
@@ -1252,10 +1242,7 @@ fn replay_refuses_unknown_names_and_ragged_rows_in_one_line() {
             ],
             dir.path(),
         );
-        assert_eq!(status(&out), 2, "{name}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{name}: {err}");
+        assert_bad_input(&out, message, name);
         assert_files(dir.path(), &["taps.txt", name]);
     }
     let dir = scratch();
@@ -1650,10 +1637,7 @@ fn prepare_on_bad_input_writes_nothing() {
         ];
         args.extend_from_slice(extra);
         let out = tool(&args, dir.path());
-        assert_eq!(status(&out), 2, "{name}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{name}: {err}");
+        assert_bad_input(&out, message, name);
         // Not even the directory it would have made.
         assert_files(dir.path(), &[name]);
     }
@@ -1867,10 +1851,7 @@ fn plot_of_a_bad_table_or_no_rate_writes_nothing() {
     ];
     for (args, message) in cases {
         let out = tool(args, dir.path());
-        assert_eq!(status(&out), 2, "{args:?}");
-        let err = stderr(&out);
-        assert_eq!(err.lines().count(), 1, "{err}");
-        assert!(err.contains(message), "{args:?}: {err}");
+        assert_bad_input(&out, message, &format!("{args:?}"));
         assert_files(dir.path(), &["t.txt"]);
     }
 }

@@ -125,12 +125,34 @@ type Chart<'b> = ChartContext<
     Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
 >;
 
+/// A tick label for a whole-number axis (tap index): none between the integers.
+fn whole_tick(v: &f64) -> String {
+    if (v - v.round()).abs() < 1e-9 {
+        tick(&v.round())
+    } else {
+        String::new()
+    }
+}
+
 fn frame<'b>(
     area: &DrawingArea<SVGBackend<'b>, Shift>,
     caption: &str,
     x: std::ops::Range<f64>,
     y: std::ops::Range<f64>,
     x_desc: &str,
+    y_desc: &str,
+) -> Result<Chart<'b>, Box<dyn std::error::Error>> {
+    frame_with(area, caption, x, y, (x_desc, &tick), y_desc)
+}
+
+type Formatter<'f> = &'f dyn Fn(&f64) -> String;
+
+fn frame_with<'b>(
+    area: &DrawingArea<SVGBackend<'b>, Shift>,
+    caption: &str,
+    x: std::ops::Range<f64>,
+    y: std::ops::Range<f64>,
+    (x_desc, x_format): (&str, Formatter),
     y_desc: &str,
 ) -> Result<Chart<'b>, Box<dyn std::error::Error>> {
     let mut chart = ChartBuilder::on(area)
@@ -145,7 +167,7 @@ fn frame<'b>(
         .bold_line_style(RGBColor(205, 205, 205))
         .label_style((FONT, 16))
         .axis_desc_style((FONT, 18))
-        .x_label_formatter(&tick)
+        .x_label_formatter(x_format)
         .y_label_formatter(&tick)
         .x_desc(x_desc)
         .y_desc(y_desc)
@@ -376,32 +398,33 @@ fn draw(f: &Figure, svg: &mut String) -> Result<(), Box<dyn std::error::Error>> 
             .zip(f.shipped.iter().rev())
             .all(|(a, b)| *a == sign * *b)
     };
+    let delay = (n as f64 - 1.0) / 2.0;
+    let delay = format!(
+        "group delay {} sample{}",
+        tick(&delay),
+        if delay == 1.0 { "" } else { "s" }
+    );
     let phase = if mirrored(1.0) {
-        format!(
-            "symmetric: linear phase, group delay {} samples",
-            (n as f64 - 1.0) / 2.0
-        )
+        format!("symmetric: linear phase, {delay}")
     } else if mirrored(-1.0) {
-        format!(
-            "antisymmetric: linear phase, group delay {} samples",
-            (n as f64 - 1.0) / 2.0
-        )
+        format!("antisymmetric: linear phase, {delay}")
     } else {
         String::from("not symmetric: the group delay varies with frequency")
     };
-    let mut impulse = frame(
+    let (first, last) = (-0.5, n as f64 - 0.5);
+    let mut impulse = frame_with(
         &bottom,
         &format!(
             "impulse response: the {n} {} taps ({phase})",
             f.shipped_label
         ),
-        -1.0..n as f64,
+        first..last,
         -peak_tap * 1.2..peak_tap * 1.2,
-        "tap index",
+        ("tap index", &whole_tick),
         "tap value",
     )?;
     impulse.draw_series(std::iter::once(PathElement::new(
-        [(-1.0, 0.0), (n as f64, 0.0)],
+        [(first, 0.0), (last, 0.0)],
         LIMIT_COLOR,
     )))?;
     impulse.draw_series(

@@ -110,6 +110,11 @@ impl Replayed {
         };
         for c in &self.channels {
             let _ = writeln!(t, "{indent}channel {}:", c.name);
+            let verdict = if c.max_error <= self.bound {
+                "within"
+            } else {
+                "EXCEEDED"
+            };
             match self.format {
                 Format::F32 => {
                     let relative = if c.max_error > 0.0 && c.max_abs_input > 0.0 {
@@ -123,27 +128,15 @@ impl Replayed {
                     };
                     let _ = writeln!(
                         t,
-                        "{indent}  max |{label} - float64|: {:.3e} capture units{relative}; bound {:.3e}: {}",
-                        c.max_error,
-                        self.bound,
-                        if c.max_error <= self.bound {
-                            "within"
-                        } else {
-                            "EXCEEDED"
-                        }
+                        "{indent}  max |{label} - float64|: {:.3e} capture units{relative}; bound {:.3e}: {verdict}",
+                        c.max_error, self.bound
                     );
                 }
                 _ => {
                     let _ = writeln!(
                         t,
-                        "{indent}  max |{label} - float64|: {:.3} LSB; error bound {:.3} LSB: {}",
-                        c.max_error,
-                        self.bound,
-                        if c.max_error <= self.bound {
-                            "within"
-                        } else {
-                            "EXCEEDED"
-                        }
+                        "{indent}  max |{label} - float64|: {:.3} LSB; error bound {:.3} LSB: {verdict}",
+                        c.max_error, self.bound
                     );
                 }
             }
