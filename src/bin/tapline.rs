@@ -1,11 +1,14 @@
-//! The tapline host tool: design taps from a spec, write them as Rust source, check the
-//! headroom of a tap table before it goes into firmware, and replay a recorded capture through
-//! the bit-exact fixed-point filter against float64, and plot a design's response as SVG.
+//! The tapline host tool: the whole job in one command (`prepare`: spec and capture in; the
+//! Rust tap table, a review plot, a report and the filtered capture out), or its steps alone —
+//! design taps from a spec (Kaiser window or equiripple), write them as Rust source, check the
+//! headroom of a tap table before it goes into firmware, replay a recorded capture through the
+//! filter as the firmware runs it against float64, and plot a design or a table as SVG.
 //!
 //! Built only with the `cli` feature (`cargo run --features cli -- --help`); the library stays
-//! `no_std` without it. Exit status: 0 done (and, for `check`, safe); 1 the taps can overflow
-//! (`check`) or an output saturated or left the error bound (`replay`); 2 bad input or a file that could not be read or written (one line on stderr naming the file,
-//! line and column, and no output file left behind).
+//! `no_std` without it. Exit status: 0 done (and safe, within the bound); 1 the taps can
+//! overflow (`check`, `design`, `emit`, `prepare`) or an output saturated or left the error
+//! bound (`replay`, `prepare`); 2 bad input or a file that could not be read or written (one
+//! line on stderr naming the file, line and column, and no output file left behind).
 
 #[path = "tapline/atomic.rs"]
 mod atomic;
@@ -62,19 +65,22 @@ enum Command {
     /// Exit 0 when the taps are safe and the replay stayed within the error bound, 1 otherwise,
     /// 2 on bad input (and then no file is written).
     Prepare(PrepareArgs),
-    /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, and report the
-    /// length, group delay, measured ripple and attenuation, and the headroom verdict.
+    /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, by a Kaiser
+    /// window or equiripple, and report the length, group delay, measured ripple and
+    /// attenuation, and the headroom verdict. Exit 0 if safe, 1 if the taps can overflow.
     Design(DesignArgs),
     /// Design as `design` does, then write the taps as a Rust source file (a `pub static` array
-    /// whose doc comment records the spec, the figures and the command).
+    /// whose doc comment records the spec, the figures and the command). Exit status as
+    /// `design`'s.
     Emit(EmitArgs),
     /// Draw an SVG for a design review: magnitude in dB of the float and quantized taps with the
     /// bands shaded, the passband close up, and the impulse response — of a design from a spec,
     /// or of an existing tap table (--taps, read as `check` reads it).
     Plot(PlotArgs),
-    /// Stream a recorded capture (CSV of raw sample codes) through the bit-exact fixed-point
-    /// filter and a float64 reference: largest difference in LSB against the error bound, SNR,
-    /// saturations, accumulator bits used. Exit 0, or 1 if an output saturated or left the bound.
+    /// Stream a recorded capture (CSV or text; one column, or named channels) through the
+    /// bit-exact fixed-point filter (or the f32 one) and a float64 reference: largest difference
+    /// against the error bound, SNR, saturations, accumulator bits used. Exit 0, or 1 if an
+    /// output saturated or left the bound.
     Replay(ReplayArgs),
     /// Headroom of an existing tap table: can any ADC input overflow the accumulator or
     /// saturate the output? Exit 0 if safe, 1 if it can overflow, 2 on bad input.
