@@ -12,6 +12,9 @@
 //! format = "q15"             # q15 | q31 | f32
 //! adc_bits = 12              # optional: the ADC's resolution (default: the whole sample word)
 //! adc_align = "right"        # optional: left | right (default left)
+//! method = "equiripple"      # optional: window (Kaiser window, the default) | equiripple
+//! length = 61                # optional, equiripple only: exactly this many taps instead of
+//!                            # the shortest that meets the spec
 //! ```
 
 use crate::failure::{Failure, line_column};
@@ -55,11 +58,34 @@ impl BandKind {
     }
 }
 
+/// How the taps are designed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Method {
+    /// A Kaiser window: β and the length from Kaiser's formulas, strengthened until the taps
+    /// meet the spec.
+    Window,
+    /// Parks–McClellan: the shortest symmetric filter whose worst error, weighted by the spec,
+    /// meets it (equal ripple across each band).
+    Equiripple,
+}
+
+impl Method {
+    pub fn name(self) -> &'static str {
+        match self {
+            Method::Window => "window",
+            Method::Equiripple => "equiripple",
+        }
+    }
+}
+
+/// The longest equiripple design the library makes.
+pub const MAX_EQUIRIPPLE_TAPS: usize = 1024;
+
 /// The spec, as flags or as a file.
 #[derive(Args, Clone)]
 pub struct SpecArgs {
     /// Read the spec from this TOML file instead of flags.
-    #[arg(long, value_name = "FILE", conflicts_with_all = ["band", "rate", "edges", "ripple", "attenuation", "format", "adc_bits", "align"])]
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["band", "rate", "edges", "ripple", "attenuation", "format", "adc_bits", "align", "method", "length"])]
     pub spec: Option<PathBuf>,
     /// Band layout.
     #[arg(long, value_enum)]
@@ -95,6 +121,12 @@ pub struct SpecArgs {
     /// Where the ADC's bits sit in the sample word.
     #[arg(long, value_enum, default_value = "left")]
     pub align: AlignArg,
+    /// Design method: a Kaiser window, or equiripple (Parks–McClellan).
+    #[arg(long, value_enum, default_value = "window")]
+    pub method: Method,
+    /// Equiripple only: exactly this many taps instead of the shortest that meets the spec.
+    #[arg(long, value_name = "TAPS")]
+    pub length: Option<u32>,
 }
 
 /// A checked spec and what it is for.
@@ -105,6 +137,9 @@ pub struct Chosen {
     pub edges: Vec<f64>,
     pub format: Format,
     pub adc: Adc,
+    pub method: Method,
+    /// Equiripple only: the length asked for (None: the shortest that meets the spec).
+    pub length: Option<usize>,
 }
 
 /// Where a value came from, for error messages.
@@ -140,6 +175,8 @@ struct SpecFile {
     format: Spanned<String>,
     adc_bits: Option<Spanned<i64>>,
     adc_align: Option<Spanned<String>>,
+    method: Option<Spanned<String>>,
+    length: Option<Spanned<i64>>,
 }
 
 impl SpecArgs {
@@ -180,6 +217,8 @@ impl SpecArgs {
                     format: self.format,
                     adc_bits,
                     align: self.align,
+                    method: self.method,
+                    length: self.length.map(|n| (i64::from(n), Place::Flag("--length"))),
                 })
             }
         }
@@ -221,6 +260,17 @@ fn from_file(path: &Path) -> Result<Chosen, Failure> {
             _ => return Err(at(a.span().start).fail("expected adc_align = \"left\" or \"right\"")),
         },
     };
+    let method = match &file.method {
+        None => Method::Window,
+        Some(m) => match m.get_ref().to_ascii_lowercase().as_str() {
+            "window" => Method::Window,
+            "equiripple" => Method::Equiripple,
+            _ => {
+                return Err(at(m.span().start)
+                    .fail("expected method = \"window\" (Kaiser) or \"equiripple\""));
+            }
+        },
+    };
     let edges = file
         .edges_hz
         .get_ref()
@@ -246,6 +296,11 @@ fn from_file(path: &Path) -> Result<Chosen, Failure> {
             .as_ref()
             .map(|b| (*b.get_ref(), at(b.span().start))),
         align,
+        method,
+        length: file
+            .length
+            .as_ref()
+            .map(|n| (*n.get_ref(), at(n.span().start))),
     })
 }
 
@@ -259,6 +314,8 @@ struct Parts<'a> {
     format: Format,
     adc_bits: Option<(i64, Place<'a>)>,
     align: AlignArg,
+    method: Method,
+    length: Option<(i64, Place<'a>)>,
 }
 
 fn check(p: Parts) -> Result<Chosen, Failure> {
@@ -325,6 +382,32 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             u32::try_from(*bits).ok()
         }
     };
+    let length = match &p.length {
+        None => None,
+        Some((_, place)) if p.method != Method::Equiripple => {
+            return Err(place.fail(
+                "expected a length only with method equiripple (the Kaiser window design finds its own length)",
+            ));
+        }
+        Some((n, place)) => {
+            let max = MAX_EQUIRIPPLE_TAPS as i64;
+            if !(3..=max).contains(n) {
+                return Err(place.fail(format!(
+                    "expected an equiripple length in 3..={max} taps, found {n}"
+                )));
+            }
+            // Parks–McClellan here makes symmetric taps only; an even-length symmetric filter
+            // has a zero at fs/2, so a band that passes fs/2 needs an odd length.
+            let passes_half = matches!(p.band, BandKind::Highpass | BandKind::Bandstop);
+            if passes_half && n % 2 == 0 {
+                return Err(place.fail(format!(
+                    "expected an odd length for a {} with method equiripple, found {n}: its taps are symmetric, and even-length symmetric taps have a zero at fs/2",
+                    p.band.name()
+                )));
+            }
+            usize::try_from(*n).ok()
+        }
+    };
     let e: Vec<f64> = p.edges.iter().map(|(e, _)| *e).collect();
     let edge = |k: usize| e.get(k).copied().unwrap_or(0.0);
     let shape = match p.band {
@@ -363,5 +446,7 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             bits,
             align: p.align,
         },
+        method: p.method,
+        length,
     })
 }

@@ -228,3 +228,12 @@ pub fn read(path: &Path, format: Format, written: Written) -> Result<Table, Fail
         }
     }
 }
+
+/// Reads a table of real tap values (f32 tables), every field in row order, each finite.
+pub fn read_reals(path: &Path) -> Result<Vec<f64>, Failure> {
+    let rows = table::read_rows(path)?;
+    rows.iter()
+        .flatten()
+        .map(|f| table::real(path, f))
+        .collect()
+}

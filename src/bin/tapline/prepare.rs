@@ -1,0 +1,238 @@
+//! `prepare`: the whole job in one command. From a spec and a recorded capture it designs the
+//! taps, proves their headroom, replays the capture through them as the firmware runs them,
+//! and writes four files into one directory:
+//!
+//! | file | what |
+//! |---|---|
+//! | `taps.rs` | the taps as a Rust `pub static` whose doc comment records spec, figures, proof and command |
+//! | `response.svg` | the design-review plot (see `plot`) |
+//! | `report.txt` | length, group delay, ripple and attenuation float vs quantized, the headroom proof and verdict, the replay's figures per channel, the result, and what each file is |
+//! | `filtered.csv` | the capture filtered: per row the sample index and, per channel, input, output, float64 reference and error |
+//!
+//! Everything is computed before anything is written, and each file is written whole (temporary
+//! file + rename); bad input leaves no file behind and no directory it created. Exit status: 0
+//! when the taps are safe and every replayed output stayed within the error bound, 1 otherwise,
+//! 2 on bad input.
+
+use crate::atomic;
+use crate::capture::Pick;
+use crate::design::{self, Designed, Taps};
+use crate::failure::Failure;
+use crate::plot;
+use crate::replay::{self, Replayed};
+use crate::report::Report;
+use crate::spec::Chosen;
+use crate::taps::Format;
+use serde_json::json;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+use tapline::Rounding;
+
+/// The files, in the order the report lists them, with what each holds.
+pub const FILES: [(&str, &str); 4] = [
+    (
+        "taps.rs",
+        "the taps as a Rust `pub static` array for the firmware; its doc comment records the spec, the figures, the headroom proof and the command",
+    ),
+    (
+        "response.svg",
+        "the design-review plot: magnitude in dB of the float64 and quantized taps with the bands shaded, the passband close-up, the impulse response",
+    ),
+    ("report.txt", "this report"),
+    (
+        "filtered.csv",
+        "the capture filtered: per row the sample index and, per channel, the input, the filter's output, the float64 reference and the error",
+    ),
+];
+
+pub struct Request {
+    pub chosen: Chosen,
+    /// Where the spec came from, for the report (a file, or the command line).
+    pub spec_source: String,
+    pub capture: PathBuf,
+    pub pick: Pick,
+    pub header: bool,
+    pub dir: PathBuf,
+    pub name: String,
+    pub command: String,
+}
+
+/// Creates `dir` if it is missing; remembers so, to take it away again if the job fails.
+struct Directory {
+    path: PathBuf,
+    created: bool,
+}
+
+impl Directory {
+    fn open(path: &Path) -> Result<Directory, Failure> {
+        if path.is_dir() {
+            return Ok(Directory {
+                path: path.to_path_buf(),
+                created: false,
+            });
+        }
+        if path.exists() {
+            return Err(Failure::argument(
+                "--out-dir",
+                format!("expected a directory, found a file: {}", path.display()),
+            ));
+        }
+        std::fs::create_dir_all(path)
+            .map_err(|e| Failure::file(path, format!("could not create the directory: {e}")))?;
+        Ok(Directory {
+            path: path.to_path_buf(),
+            created: true,
+        })
+    }
+
+    /// The job failed: a directory this run created goes again (only if still empty).
+    fn abandon(&self) {
+        if self.created {
+            let _ = std::fs::remove_dir(&self.path);
+        }
+    }
+}
+
+pub fn run(r: &Request) -> Result<Report, Failure> {
+    let designed = design::design(r.chosen.clone())?;
+    let dir = Directory::open(&r.dir)?;
+    match job(r, &designed, &dir.path) {
+        Ok(report) => Ok(report),
+        Err(e) => {
+            dir.abandon();
+            Err(e)
+        }
+    }
+}
+
+fn job(r: &Request, d: &Designed, dir: &Path) -> Result<Report, Failure> {
+    let path = |name: &str| dir.join(name);
+    let format = d.chosen.format;
+    let (replayed, filtered) = replay::run(&replay::Request {
+        capture: r.capture.clone(),
+        pick: r.pick.clone(),
+        header: r.header,
+        taps: d.taps.clone(),
+        ideal: d.ideal.clone(),
+        format,
+        adc: d.chosen.adc,
+        rounding: Rounding::HalfUp,
+        out: Some(path("filtered.csv")),
+    })?;
+    // Everything in memory first; then the files, each whole.
+    let source = d.rust_source(&r.name, &r.command);
+    let svg = plot::render(&plot::design_figure(d))?;
+    let safe = d.is_safe();
+    let status = if safe && replayed.status() == 0 { 0 } else { 1 };
+    let text = report_text(r, d, &replayed, status, dir);
+    atomic::write(&path("taps.rs"), source.as_bytes())?;
+    atomic::write(&path("response.svg"), svg.as_bytes())?;
+    atomic::write(&path("report.txt"), text.as_bytes())?;
+    if let Some(f) = filtered {
+        f.commit()?;
+    }
+    let mut stdout = text;
+    let _ = writeln!(stdout, "\nwrote {}", dir.display());
+    let files: serde_json::Map<String, serde_json::Value> = FILES
+        .iter()
+        .map(|(name, _)| ((*name).to_string(), json!(path(name).display().to_string())))
+        .collect();
+    let json = json!({
+        "command": "prepare",
+        "spec": r.spec_source,
+        "capture": r.capture.display().to_string(),
+        "directory": dir.display().to_string(),
+        "files": files,
+        "design": d.json("prepare"),
+        "replay": replayed.json(),
+        "safe": safe,
+        "within_bound": replayed.within(),
+        "saturated": replayed.saturated(),
+        "status": status,
+    });
+    Ok(Report {
+        text: stdout,
+        json,
+        status,
+    })
+}
+
+fn report_text(r: &Request, d: &Designed, replayed: &Replayed, status: u8, dir: &Path) -> String {
+    let mut t = String::new();
+    let _ = writeln!(
+        t,
+        "tapline prepare: design, headroom proof and replay of a capture"
+    );
+    let _ = writeln!(t, "command: {}", r.command);
+    let _ = writeln!(t, "spec: {}", r.spec_source);
+    let names: Vec<&str> = replayed.channels.iter().map(|c| c.name.as_str()).collect();
+    let _ = writeln!(
+        t,
+        "capture: {} ({} rows; channel(s) {})",
+        r.capture.display(),
+        replayed.samples,
+        names.join(", ")
+    );
+    let _ = writeln!(t, "\n== design");
+    t.push_str(&d.summary());
+    let _ = writeln!(
+        t,
+        "\n== replay: the capture through the {} taps as the firmware runs them, against float64",
+        d.chosen.format.name()
+    );
+    match d.chosen.format {
+        Format::F32 => {
+            let _ = writeln!(
+                t,
+                "f32 arithmetic; errors in the capture's own unit, bound {:.3e} for inputs up to its largest |sample|",
+                replayed.bound
+            );
+        }
+        _ => {
+            let _ = writeln!(
+                t,
+                "half-up output rounding; errors in LSB of the output word, bound {:.3} LSB for any input the ADC can produce",
+                replayed.bound
+            );
+        }
+    }
+    t.push_str(&replayed.channel_text(""));
+    let _ = writeln!(t, "\n== result");
+    let mut reasons = Vec::new();
+    if !d.is_safe() {
+        reasons.push("the headroom proof says some input in range can overflow the taps");
+    }
+    if !replayed.within() {
+        reasons.push("a replayed output left the error bound");
+    }
+    if replayed.saturated() > 0 {
+        reasons.push(match d.chosen.format {
+            Format::F32 => "a replayed output came out NaN or infinite",
+            _ => "a replayed output saturated",
+        });
+    }
+    if status == 0 {
+        let _ = writeln!(
+            t,
+            "PASS (exit 0): no input in range can overflow the taps, and every replayed output stayed within the error bound"
+        );
+    } else {
+        let _ = writeln!(t, "FAIL (exit 1): {}", reasons.join("; "));
+    }
+    let _ = writeln!(t, "\n== files in {}", dir.display());
+    for (name, what) in FILES {
+        let _ = writeln!(t, "{name:<13} {what}");
+    }
+    if let Taps::Fixed(_) = &d.taps {
+        let _ = writeln!(
+            t,
+            "(filtered.csv columns: sample, then per channel input, fixed, reference, error_lsb; prefixed with the channel's name when chosen by name)"
+        );
+    } else {
+        let _ = writeln!(
+            t,
+            "(filtered.csv columns: sample, then per channel input, f32, reference, error in the capture's unit; prefixed with the channel's name when chosen by name)"
+        );
+    }
+    t
+}
