@@ -76,7 +76,7 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
 ///   counted by [`saturations`](Decimator::saturations), never wrapped).
 /// * **Group delay:** (N−1)/2 input samples for symmetric or antisymmetric taps, i.e.
 ///   (N−1)/(2M) output samples ([`group_delay`](Decimator::group_delay), in input samples).
-/// * **RAM:** N samples, one index, one phase counter, the borrowed taps, rounding, counter.
+/// * **RAM:** 2·N samples (the mirrored [`Ring`](crate::Ring)), one index, one phase counter, the borrowed taps, rounding, counter.
 ///
 /// Per-sample ([`push`](Decimator::push)) and block ([`process`](Decimator::process),
 /// [`process_in_place`](Decimator::process_in_place)) calls give the same outputs for any

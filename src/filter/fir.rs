@@ -9,8 +9,10 @@ use crate::{Error, Ring};
 /// [`num`](crate::num) table).
 ///
 /// The taps are borrowed (`&'a [T; N]`), so a table in flash (`static`/`const`) costs no RAM.
-/// The filter's own RAM is `N` samples of history, one index, the rounding mode and a
-/// saturation counter (`size_of::<Fir<i16, 32>>()` is 80 bytes on a 32-bit target: 64 of history, 16 of bookkeeping).
+/// The filter's own RAM is the [`Ring`] of history (`2·N` samples: a mirrored copy keeps the
+/// history one slice, which the block kernels need), one index, the rounding mode and a
+/// saturation counter (`size_of::<Fir<i16, 32>>()` is 144 bytes on a 32-bit target: 128 of
+/// history, 16 of bookkeeping).
 ///
 /// * **Accumulator:** [`MulAcc::Acc`] of the sample type — `i64` for Q15 and Q31, exact.
 ///   [`new`](Fir::new) rejects taps that could overflow it for any input.

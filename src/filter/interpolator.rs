@@ -25,7 +25,7 @@ use core::marker::PhantomData;
 ///   [`saturations`](Interpolator::saturations).
 /// * **Group delay:** (N−1)/2 *output* samples for symmetric or antisymmetric taps
 ///   ([`group_delay`](Interpolator::group_delay)).
-/// * **RAM:** the history is a `Ring` of N low-rate samples, of which the newest ⌈N/L⌉ are read.
+/// * **RAM:** the history is a `Ring` of N low-rate samples (2·N stored, mirrored), of which the newest ⌈N/L⌉ are read.
 ///
 /// ```
 /// use tapline::Interpolator;

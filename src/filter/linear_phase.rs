@@ -26,7 +26,7 @@ use core::marker::PhantomData;
 ///   [`saturations`](LinearPhaseFir::saturations).
 /// * **Group delay:** exactly (N−1)/2 samples at every frequency
 ///   ([`group_delay`](LinearPhaseFir::group_delay)).
-/// * **RAM:** N samples of history, one index, the borrowed taps, a fold flag, the rounding mode
+/// * **RAM:** 2·N samples of history (the mirrored [`Ring`](crate::Ring)), one index, the borrowed taps, a fold flag, the rounding mode
 ///   and the counter.
 ///
 /// Per-sample ([`push`](LinearPhaseFir::push)) and block ([`process`](LinearPhaseFir::process),

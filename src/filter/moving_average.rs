@@ -24,7 +24,7 @@ use crate::{Error, Ring};
 ///   counter is kept for the common contract and stays at 0.
 /// * **Group delay:** (N−1)/2 samples ([`group_delay`](MovingAverage::group_delay)).
 /// * **Cost:** one add, one subtract, one 64-bit division by the constant N (which compilers
-///   turn into a multiply where the target has one) per sample. **RAM:** N samples, one index,
+///   turn into a multiply where the target has one) per sample. **RAM:** 2·N samples (the mirrored ring), one index,
 ///   the 8-byte sum, rounding and counter.
 /// * **Output format** = sample format (`i16`, `i32`, `FixedI16<F>`, `FixedI32<F>`).
 ///

@@ -18,7 +18,7 @@ use core::marker::PhantomData;
 ///   ([`saturations`](MultiChannelFir::saturations)).
 /// * **Group delay:** (N−1)/2 samples of each channel for symmetric or antisymmetric taps
 ///   ([`group_delay`](MultiChannelFir::group_delay)).
-/// * **RAM:** C·N samples, C indices, the borrowed taps, rounding and one counter.
+/// * **RAM:** 2·C·N samples (C mirrored rings), C indices, the borrowed taps, rounding and one counter.
 ///
 /// ```
 /// use tapline::MultiChannelFir;
