@@ -113,8 +113,12 @@ impl<T: Copy, const N: usize> Ring<T, N> {
     pub fn window(&self) -> &[T] {
         // The oldest value sits at `next` in the primary half; the N values from there run
         // on into the mirror, which repeats the primary's slots 0..next (the newer values).
+        // Through a fixed-size chunk, so the kernels see a length of exactly N at compile time.
         let flat = self.slots.as_flattened();
-        flat.get(self.next..self.next + N).unwrap_or(flat)
+        match flat.get(self.next..).and_then(<[T]>::first_chunk::<N>) {
+            Some(window) => window,
+            None => flat,
+        }
     }
 
     /// The most recently pushed value (the fill value if nothing was pushed).

@@ -166,8 +166,7 @@ pub fn dot_folded<S: FoldMulAcc<T, W>, T: Sample, W>(
 /// ordered oldest→newest); no outputs when `taps` is empty or `span` shorter than `taps`.
 ///
 /// Four outputs share each pass over the taps (register blocking): every tap is loaded once
-/// per four outputs and each sample once per tap step, instead of once per output. Where the
-/// accumulator is wider than a register (`i64` on a 32-bit core), one output per pass.
+/// per four outputs and each sample once per tap step, instead of once per output.
 ///
 /// **Numerics:** each output is summed from `S::ACC_ZERO` in ascending tap index, exactly as
 /// [`dot_reversed`] sums it — so the results are bit-identical to calling [`dot_reversed`] on
@@ -191,12 +190,7 @@ pub fn dot_block<S: MulAcc<T, W>, T: Sample, W>(
         return;
     }
     let mut rest = span;
-    // Four sums wider than a register (i64 on a 32-bit core, i128) do not stay in registers
-    // beside the samples and taps; the compiler spills them and one output per pass is faster
-    // (measured on the Cortex-M4F and M0: examples/qemu/COSTS.md). The test is on sizes, so it
-    // is decided at compile time.
-    let blocked = core::mem::size_of::<S::Acc>() <= core::mem::size_of::<usize>();
-    while let (Some(window), true) = (rest.get(..len + 3), blocked) {
+    while let Some(window) = rest.get(..len + 3) {
         let [a0, a1, a2, a3] = dot_reversed_four::<S, T, W>(taps, window);
         emit(a0);
         emit(a1);
