@@ -2,7 +2,7 @@
 //! counter, the convolution sums over a [`Ring`]'s two slices (plain, strided, folded), the
 //! decimation phase, and the block loops that make block calls equal per-sample calls.
 
-use crate::kernel::{Fold, FoldMulAcc, dot_folded, dot_reversed, dot_reversed_strided};
+use crate::kernel::{Fold, FoldMulAcc, dot_folded, dot_reversed_strided};
 use crate::num::fixed_point::clamp_masked;
 use crate::num::{FixedPoint, MulAcc, Rounding, Sample};
 use crate::{Error, Ring};
@@ -112,7 +112,7 @@ pub(crate) fn history_dot<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
     history: &Ring<S, N>,
     taps: &[T],
 ) -> S::Acc {
-    dot_reversed::<S, T, W>(acc, taps, history.window())
+    S::dot_reversed(acc, taps, history.window())
 }
 
 /// `acc + Σ_i taps[i·tap_step]·x[n − skip − i·x_step]` over the history, in ascending i, for as

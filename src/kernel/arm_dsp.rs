@@ -279,3 +279,465 @@ fn four_outputs_f32(taps: &[f32], window: &[f32]) -> [f32; 4] {
     }
     acc
 }
+
+/// The single-output sums (per-sample calls): `acc + Σ_k taps[k]·xs[len − 1 − k]` over
+/// `k < len = min(taps.len(), xs.len())`, `xs` read backward from its end — the contract of
+/// [`dot_reversed`](super::dot_reversed), which is each function's portable twin.
+///
+/// Returns the equal-length tails the assembly works on: `taps[..len]` and the last `len`
+/// samples.
+#[inline(always)]
+fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X]) {
+    let len = taps.len().min(xs.len());
+    (
+        taps.get(..len).unwrap_or(&[]),
+        xs.get(xs.len() - len..).unwrap_or(&[]),
+    )
+}
+
+/// Q15 samples and taps, one output, 32-bit wrapping sum (the proven accumulator): 16 taps per
+/// loop pass as 8 `SMLADX`, each after one tap-pair and one sample-pair load.
+///
+/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) with
+/// [`Acc32`](crate::headroom::Acc32) (integer sums modulo 2^32 do not depend on order).
+#[inline]
+#[must_use]
+pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
+    let (taps, xs) = matched(taps, xs);
+    let groups = taps.len() / 16;
+    let mut acc = acc;
+    let end = xs.get(xs.len()..).map(<[i16]>::as_ptr);
+    if let (Some(end), true) = (end, groups > 0) {
+        // SAFETY: `end` is one past the last sample. Each pair step pre-decrements the sample
+        // pointer by 2 elements and reads 2 there, and reads 2 taps at the tap pointer, then
+        // advances it by 2; a loop pass is 8 steps. After `groups` passes the lowest sample read
+        // is xs[len − 16·groups] ≥ xs[0] and the highest tap taps[16·groups − 1] < taps[len].
+        // `ldr` may be unaligned on Armv7-M (see the module doc). Memory is only read; the
+        // stack is untouched; `subs` clobbers the flags; every register written is an operand.
+        unsafe {
+            asm!(
+                "2:",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smladx {a}, {t}, {s}, {a}",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                x = inout(reg) end => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                t = out(reg) _,
+                s = out(reg) _,
+                a = inout(reg) acc,
+                options(nostack, readonly),
+            );
+        }
+    }
+    let done = if end.is_some() { 16 * groups } else { 0 };
+    reversed_sum(
+        acc,
+        taps.get(done..).unwrap_or(&[]),
+        xs.get(..xs.len() - done).unwrap_or(&[]),
+    )
+}
+
+/// Q15 samples and taps, one output, exact 64-bit sum (the default accumulator): as
+/// [`dot_reversed_q15_i32`] with `SMLALDX`.
+///
+/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `i16` with the
+/// default accumulator: each product is exact and the 64-bit sum wraps modulo 2^64 as there.
+#[inline]
+#[must_use]
+pub fn dot_reversed_q15_i64(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
+    let (taps, xs) = matched(taps, xs);
+    let groups = taps.len() / 16;
+    let (mut lo, mut hi) = split64(acc);
+    let end = xs.get(xs.len()..).map(<[i16]>::as_ptr);
+    if let (Some(end), true) = (end, groups > 0) {
+        // SAFETY: as in `dot_reversed_q15_i32`: the same pointers, steps and pass count, so the
+        // same elements are read; only the accumulate instruction differs.
+        unsafe {
+            asm!(
+                "2:",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s}, [{x}, #-4]!",
+                "smlaldx {lo}, {hi}, {t}, {s}",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                x = inout(reg) end => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                t = out(reg) _,
+                s = out(reg) _,
+                lo = inout(reg) lo,
+                hi = inout(reg) hi,
+                options(nostack, readonly),
+            );
+        }
+    }
+    let done = if end.is_some() { 16 * groups } else { 0 };
+    taps.get(done..)
+        .unwrap_or(&[])
+        .iter()
+        .zip(xs.get(..xs.len() - done).unwrap_or(&[]).iter().rev())
+        .fold(join64(lo, hi), |acc, (&h, &x)| {
+            acc.wrapping_add(i64::from(i32::from(h) * i32::from(x)))
+        })
+}
+
+/// Q31 samples and taps, one output, exact 64-bit sum: 4 taps per loop pass, two `LDRD` of
+/// taps, two of samples and four `SMLAL`.
+///
+/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `i32` with the
+/// default accumulator (exact products, sum modulo 2^64).
+#[inline]
+#[must_use]
+pub fn dot_reversed_q31_i64(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
+    let (taps, xs) = matched(taps, xs);
+    let groups = taps.len() / 4;
+    let (mut lo, mut hi) = split64(acc);
+    let end = xs.get(xs.len()..).map(<[i32]>::as_ptr);
+    if let (Some(end), true) = (end, groups > 0) {
+        // SAFETY: `end` is one past the last sample. A pass reads taps[4j .. 4j+4] (two `ldrd`
+        // with post-increment) and, with two pre-decrements of 2 elements, the 4 samples below
+        // the sample pointer; after `groups` passes that is taps[..4·groups] and
+        // xs[len − 4·groups ..], both inside. `i32` slices are 4-byte aligned, which `ldrd`
+        // needs on Armv7-M. Memory is only read; the stack is untouched; `subs` clobbers the
+        // flags; every register written is an operand.
+        unsafe {
+            asm!(
+                "2:",
+                // h0·x[n−k] + h1·x[n−k−1]: `ldrd` puts the lower address in the first register.
+                "ldrd {h0}, {h1}, [{h}], #8",
+                "ldrd {p}, {q}, [{x}, #-8]!",
+                "smlal {lo}, {hi}, {h0}, {q}",
+                "smlal {lo}, {hi}, {h1}, {p}",
+                "ldrd {h0}, {h1}, [{h}], #8",
+                "ldrd {p}, {q}, [{x}, #-8]!",
+                "smlal {lo}, {hi}, {h0}, {q}",
+                "smlal {lo}, {hi}, {h1}, {p}",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                x = inout(reg) end => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                h0 = out(reg) _,
+                h1 = out(reg) _,
+                p = out(reg) _,
+                q = out(reg) _,
+                lo = inout(reg) lo,
+                hi = inout(reg) hi,
+                options(nostack, readonly),
+            );
+        }
+    }
+    let done = if end.is_some() { 4 * groups } else { 0 };
+    taps.get(done..)
+        .unwrap_or(&[])
+        .iter()
+        .zip(xs.get(..xs.len() - done).unwrap_or(&[]).iter().rev())
+        .fold(join64(lo, hi), |acc, (&h, &x)| {
+            acc.wrapping_add(i64::from(h) * i64::from(x))
+        })
+}
+
+/// The block sum of Q31 samples and taps in exact 64-bit sums: as
+/// [`dot_block`](super::dot_block), two outputs per pass over the taps (four 64-bit sums would
+/// not fit in the registers beside the taps and samples).
+///
+/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) for `i32` with the default
+/// accumulator. **Cost:** per two taps and two outputs one `LDRD` of taps, one of samples and
+/// four `SMLAL`.
+#[inline]
+pub fn dot_block_q31_i64(taps: &[i32], span: &[i32], mut emit: impl FnMut(i64)) {
+    let len = taps.len();
+    if len == 0 {
+        return;
+    }
+    let mut rest = span;
+    while let Some(window) = rest.get(..len + 1) {
+        let [a0, a1] = two_outputs_q31(taps, window);
+        emit(a0);
+        emit(a1);
+        rest = rest.get(2..).unwrap_or(&[]);
+    }
+    if let Some(window) = rest.get(..len) {
+        emit(dot_reversed_q31_i64(0, taps, window));
+    }
+}
+
+/// Outputs 0 and 1 over `window` (L + 1 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].
+#[inline(always)]
+fn two_outputs_q31(taps: &[i32], window: &[i32]) -> [i64; 2] {
+    let len = taps.len();
+    let groups = len / 4;
+    let (mut lo0, mut hi0, mut lo1, mut hi1) = (0u32, 0u32, 0u32, 0u32);
+    let newest = window.get(len..len + 1).map(<[i32]>::as_ptr);
+    if let (Some(newest), true) = (newest, groups > 0) {
+        // SAFETY: `newest` points at window[L] of L + 1 elements; the first load reads it. A
+        // pass reads taps[4j .. 4j+4] (two `ldrd`, post-increment) and the 4 samples below the
+        // sample pointer (two `ldrd` with pre-decrement); after `groups` passes that is
+        // taps[..4·groups] and window[L − 4·groups ..], inside both slices. `i32` slices are
+        // 4-byte aligned, as `ldrd` needs. Memory is only read; the stack is untouched; `subs`
+        // clobbers the flags; every register written is an operand.
+        unsafe {
+            asm!(
+                "ldr {c}, [{x}]",
+                "2:",
+                // Taps k, k+1: output 0 takes x[L−1−k], x[L−2−k] (q, p, just loaded), output 1
+                // takes x[L−k] (c, carried), x[L−1−k] (q).
+                "ldrd {h0}, {h1}, [{h}], #8",
+                "ldrd {p}, {q}, [{x}, #-8]!",
+                "smlal {lo0}, {hi0}, {h0}, {q}",
+                "smlal {lo1}, {hi1}, {h0}, {c}",
+                "smlal {lo0}, {hi0}, {h1}, {p}",
+                "smlal {lo1}, {hi1}, {h1}, {q}",
+                // Taps k+2, k+3: the carry is p; the new pair goes to (c, q).
+                "ldrd {h0}, {h1}, [{h}], #8",
+                "ldrd {c}, {q}, [{x}, #-8]!",
+                "smlal {lo0}, {hi0}, {h0}, {q}",
+                "smlal {lo1}, {hi1}, {h0}, {p}",
+                "smlal {lo0}, {hi0}, {h1}, {c}",
+                "smlal {lo1}, {hi1}, {h1}, {q}",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                x = inout(reg) newest => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                h0 = out(reg) _,
+                h1 = out(reg) _,
+                p = out(reg) _,
+                q = out(reg) _,
+                c = out(reg) _,
+                lo0 = inout(reg) lo0,
+                hi0 = inout(reg) hi0,
+                lo1 = inout(reg) lo1,
+                hi1 = inout(reg) hi1,
+                options(nostack, readonly),
+            );
+        }
+    }
+    let done = if newest.is_some() { 4 * groups } else { 0 };
+    let taps_left = taps.get(done..).unwrap_or(&[]);
+    let rest = |acc: i64, m: usize| {
+        let xs = window.get(..len + m - done).unwrap_or(&[]);
+        taps_left
+            .iter()
+            .zip(xs.iter().rev())
+            .fold(acc, |acc, (&h, &x)| {
+                acc.wrapping_add(i64::from(h) * i64::from(x))
+            })
+    };
+    [rest(join64(lo0, hi0), 0), rest(join64(lo1, hi1), 1)]
+}
+
+/// The block sum of Q15 samples and taps in exact 64-bit sums (the default accumulator): as
+/// [`dot_block`](super::dot_block), two outputs per pass with `SMLALDX`.
+///
+/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) for `i16` with the default
+/// accumulator. **Cost:** per two taps and two outputs one tap-pair load, two sample-pair
+/// loads (one of them unaligned) and two `SMLALDX`.
+#[inline]
+pub fn dot_block_q15_i64(taps: &[i16], span: &[i16], mut emit: impl FnMut(i64)) {
+    let len = taps.len();
+    if len == 0 {
+        return;
+    }
+    let mut rest = span;
+    while let Some(window) = rest.get(..len + 1) {
+        let [a0, a1] = two_outputs_q15(taps, window);
+        emit(a0);
+        emit(a1);
+        rest = rest.get(2..).unwrap_or(&[]);
+    }
+    if let Some(window) = rest.get(..len) {
+        emit(dot_reversed_q15_i64(0, taps, window));
+    }
+}
+
+/// Outputs 0 and 1 over `window` (L + 1 samples), Q15, 64-bit sums.
+#[inline(always)]
+fn two_outputs_q15(taps: &[i16], window: &[i16]) -> [i64; 2] {
+    let len = taps.len();
+    let groups = len / 8;
+    let (mut lo0, mut hi0, mut lo1, mut hi1) = (0u32, 0u32, 0u32, 0u32);
+    let newest = window.get(len..len + 1).map(<[i16]>::as_ptr);
+    if let (Some(newest), true) = (newest, groups > 0) {
+        // SAFETY: `newest` points at window[L] of L + 1 elements. Each pair step moves the
+        // sample pointer back by 2 elements and reads 2 there (output 0) and 2 one element
+        // higher (output 1), up to window[L] on the first step; it reads 2 taps and advances
+        // the tap pointer by 2. A pass is 4 steps; after `groups` passes the lowest sample read
+        // is window[L − 8·groups] ≥ window[0] and the highest tap taps[8·groups − 1] < taps[L].
+        // `ldr` may be unaligned (module doc). Memory is only read; the stack is untouched;
+        // `subs` clobbers the flags; every register written is an operand.
+        unsafe {
+            asm!(
+                "2:",
+                "ldr {t}, [{h}], #4",
+                "ldr {s0}, [{x}, #-4]!",
+                "ldr {s1}, [{x}, #2]",
+                "smlaldx {lo0}, {hi0}, {t}, {s0}",
+                "smlaldx {lo1}, {hi1}, {t}, {s1}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s0}, [{x}, #-4]!",
+                "ldr {s1}, [{x}, #2]",
+                "smlaldx {lo0}, {hi0}, {t}, {s0}",
+                "smlaldx {lo1}, {hi1}, {t}, {s1}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s0}, [{x}, #-4]!",
+                "ldr {s1}, [{x}, #2]",
+                "smlaldx {lo0}, {hi0}, {t}, {s0}",
+                "smlaldx {lo1}, {hi1}, {t}, {s1}",
+                "ldr {t}, [{h}], #4",
+                "ldr {s0}, [{x}, #-4]!",
+                "ldr {s1}, [{x}, #2]",
+                "smlaldx {lo0}, {hi0}, {t}, {s0}",
+                "smlaldx {lo1}, {hi1}, {t}, {s1}",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                x = inout(reg) newest => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                t = out(reg) _,
+                s0 = out(reg) _,
+                s1 = out(reg) _,
+                lo0 = inout(reg) lo0,
+                hi0 = inout(reg) hi0,
+                lo1 = inout(reg) lo1,
+                hi1 = inout(reg) hi1,
+                options(nostack, readonly),
+            );
+        }
+    }
+    let done = if newest.is_some() { 8 * groups } else { 0 };
+    let taps_left = taps.get(done..).unwrap_or(&[]);
+    let rest = |acc: i64, m: usize| {
+        let xs = window.get(..len + m - done).unwrap_or(&[]);
+        taps_left
+            .iter()
+            .zip(xs.iter().rev())
+            .fold(acc, |acc, (&h, &x)| {
+                acc.wrapping_add(i64::from(i32::from(h) * i32::from(x)))
+            })
+    };
+    [rest(join64(lo0, hi0), 0), rest(join64(lo1, hi1), 1)]
+}
+
+/// `f32`, one output: 8 taps per loop pass (two `VLDM` of taps, two `VLDMDB` of samples, eight
+/// `VMLA.F32` into one sum, in ascending tap order).
+///
+/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `f32`: the same
+/// products and sums in the same order, each rounded once (`VMLA` is not fused).
+#[cfg(tapline_arm_fpu)]
+#[inline]
+#[must_use]
+pub fn dot_reversed_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
+    let (taps, xs) = matched(taps, xs);
+    let groups = taps.len() / 8;
+    let mut sum = [acc];
+    let end = xs.get(xs.len()..).map(<[f32]>::as_ptr);
+    if let (Some(end), true) = (end, groups > 0) {
+        // SAFETY: `end` is one past the last sample. A pass reads taps[8j .. 8j+8] (two
+        // `vldmia` with write-back) and the 8 samples below the sample pointer (two `vldmdb`);
+        // after `groups` passes that is taps[..8·groups] and xs[len − 8·groups ..], inside
+        // both. `f32` slices are 4-byte aligned, as `vldm` needs. The only memory written is
+        // `sum`, a local `[f32; 1]` read first and stored last (s-registers cannot be operands
+        // on this target, see `four_outputs_f32`); the stack is untouched; `subs` clobbers the
+        // flags; every register written is an operand or declared clobbered.
+        unsafe {
+            asm!(
+                "vldr s0, [{sum}]",
+                "2:",
+                "vldmia {h}!, {{s8-s11}}",
+                "vldmdb {x}!, {{s12-s15}}",
+                "vmla.f32 s0, s8, s15",
+                "vmla.f32 s0, s9, s14",
+                "vmla.f32 s0, s10, s13",
+                "vmla.f32 s0, s11, s12",
+                "vldmia {h}!, {{s8-s11}}",
+                "vldmdb {x}!, {{s12-s15}}",
+                "vmla.f32 s0, s8, s15",
+                "vmla.f32 s0, s9, s14",
+                "vmla.f32 s0, s10, s13",
+                "vmla.f32 s0, s11, s12",
+                "subs {n}, {n}, #1",
+                "bne 2b",
+                "vstr s0, [{sum}]",
+                x = inout(reg) end => _,
+                h = inout(reg) taps.as_ptr() => _,
+                n = inout(reg) groups => _,
+                sum = in(reg) sum.as_mut_ptr(),
+                out("s0") _,
+                out("s8") _,
+                out("s9") _,
+                out("s10") _,
+                out("s11") _,
+                out("s12") _,
+                out("s13") _,
+                out("s14") _,
+                out("s15") _,
+                options(nostack),
+            );
+        }
+    }
+    let done = if end.is_some() { 8 * groups } else { 0 };
+    let [acc] = sum;
+    reversed_sum_f32(
+        acc,
+        taps.get(done..).unwrap_or(&[]),
+        xs.get(..xs.len() - done).unwrap_or(&[]),
+    )
+}
+
+/// An `i64` as its (low, high) 32-bit halves, the register pair `SMLAL`/`SMLALD` accumulate.
+#[inline(always)]
+fn split64(v: i64) -> (u32, u32) {
+    (v as u32, (v >> 32) as u32)
+}
+
+/// The inverse of [`split64`].
+#[inline(always)]
+fn join64(lo: u32, hi: u32) -> i64 {
+    ((u64::from(hi) << 32) | u64::from(lo)) as i64
+}

@@ -35,6 +35,11 @@ impl MulAcc<f32> for f32 {
     fn dot_block(taps: &[f32], span: &[f32], emit: impl FnMut(f32)) {
         crate::kernel::arm_dsp::dot_block_f32(taps, span, emit);
     }
+    #[cfg(all(target_arch = "arm", tapline_arm_fpu))]
+    #[inline(always)]
+    fn dot_reversed(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
+        crate::kernel::arm_dsp::dot_reversed_f32(acc, taps, xs)
+    }
     #[inline(always)]
     fn mul_acc(acc: f32, tap: f32, x: f32) -> f32 {
         acc + tap * x

@@ -158,4 +158,21 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     fn dot_block(taps: &[T], span: &[Self], emit: impl FnMut(Self::Acc)) {
         crate::kernel::dot_block::<Self, T, W>(taps, span, emit);
     }
+
+    /// The single-output sum the filters run per sample: `acc + Σ taps[k]·xs[len − 1 − k]`
+    /// over `k < len = min(taps.len(), xs.len())` (the contract of
+    /// [`dot_reversed`](crate::kernel::dot_reversed)).
+    ///
+    /// The provided method is the portable kernel; Q15, Q31 and `f32` use the assembly kernels
+    /// of `kernel::arm_dsp` on Armv7E-M, which are bit-identical to it.
+    ///
+    /// ```
+    /// use tapline::MulAcc;
+    /// // h = [1, 2, 3] against the history 10, 20, 30 (newest last): 1·30 + 2·20 + 3·10.
+    /// assert_eq!(<i16 as MulAcc<i16>>::dot_reversed(0, &[1, 2, 3], &[10, 20, 30]), 100);
+    /// ```
+    #[inline(always)]
+    fn dot_reversed(acc: Self::Acc, taps: &[T], xs: &[Self]) -> Self::Acc {
+        crate::kernel::dot_reversed::<Self, T, W>(acc, taps, xs)
+    }
 }

@@ -71,112 +71,189 @@ where
     mismatches
 }
 
-/// The dual multiply-accumulate kernel against its portable twin on the same data: every tap
-/// count from 1 to 40 (whole groups of eight taps and every remainder), every span length up to
-/// 13 outputs (whole groups of four outputs and every remainder), random codes with many
-/// full-scale values, and an all-full-scale case whose sums wrap around `i32`. Returns the
-/// number of outputs that differ.
+/// Outputs kept per block comparison: up to 13, which covers whole groups of four and of two
+/// outputs and every remainder.
 #[cfg(dsp_kernels)]
-fn dsp_twin_mismatches() -> usize {
-    let mut state = 0x2545_f491u32;
-    let mut next = move || {
-        state ^= state << 13;
-        state ^= state >> 17;
-        state ^= state << 5;
-        match state % 8 {
-            0 => i16::MIN,
-            1 => i16::MAX,
-            _ => (state >> 16) as i16,
-        }
-    };
+const OUTPUTS: usize = 13;
+
+/// Runs an assembly kernel and its portable twin on the same data and counts the outputs that
+/// differ: every tap count from 1 to 40 (whole loop passes and every remainder), block spans
+/// giving 1..=13 outputs, single sums over histories from 3 shorter to 3 longer than the taps,
+/// once with values from `next` and once with every value `extreme` (sums that wrap or
+/// overflow). `block` and `single` return (assembly, twin).
+#[cfg(dsp_kernels)]
+fn twin_mismatches<X: Copy + Default, A: PartialEq>(
+    name: &str,
+    mut next: impl FnMut() -> X,
+    extreme: X,
+    block: impl Fn(&[X], &[X], &mut [A; OUTPUTS], &mut [A; OUTPUTS]),
+    single: impl Fn(&[X], &[X]) -> (A, A),
+    fill: impl Fn() -> [A; OUTPUTS],
+) -> usize {
     let mut mismatches = 0;
-    let mut taps = [0i16; 40];
-    let mut span = [0i16; 52];
-    for extreme in [false, true] {
+    let mut taps = [X::default(); 40];
+    let mut span = [X::default(); 52];
+    for use_extreme in [false, true] {
         for len in 1..=taps.len() {
             for v in taps.iter_mut().chain(span.iter_mut()) {
-                *v = if extreme { i16::MIN } else { next() };
+                *v = if use_extreme { extreme } else { next() };
             }
-            for outputs in 1..=13 {
-                let (Some(h), Some(x)) = (taps.get(..len), span.get(..len - 1 + outputs)) else {
+            let Some(h) = taps.get(..len) else {
+                return usize::MAX;
+            };
+            for outputs in 1..=OUTPUTS {
+                let Some(x) = span.get(..len - 1 + outputs) else {
                     return usize::MAX;
                 };
-                let mut fast = [0i32; 13];
-                let mut twin = [0i32; 13];
-                let (mut f, mut t) = (fast.iter_mut(), twin.iter_mut());
-                tapline::kernel::arm_dsp::dot_block_q15_i32(h, x, |acc| {
-                    if let Some(slot) = f.next() {
-                        *slot = acc;
-                    }
-                });
-                tapline::kernel::dot_block::<i16, i16, Acc32<Smoother>>(h, x, |acc| {
-                    if let Some(slot) = t.next() {
-                        *slot = acc;
-                    }
-                });
+                let (mut fast, mut twin) = (fill(), fill());
+                block(h, x, &mut fast, &mut twin);
                 mismatches += fast.iter().zip(&twin).filter(|(a, b)| a != b).count();
+            }
+            for history in len.saturating_sub(3)..=len + 3 {
+                let Some(x) = span.get(..history) else {
+                    return usize::MAX;
+                };
+                let (fast, twin) = single(h, x);
+                mismatches += usize::from(fast != twin);
             }
         }
     }
     hprintln!(
-        "dsp kernel twin (q15): tap counts 1..=40, 1..=13 outputs, mismatches: {}",
+        "kernel twin {}: tap counts 1..=40, blocks of 1..=13 outputs, single sums: {} mismatches",
+        name,
         mismatches
     );
     mismatches
 }
 
-/// The FPU kernel against its portable twin, bit for bit: the same tap counts and output
-/// counts, random values over many binades with occasional zeros, infinities and NaN.
+/// Writes a block kernel's outputs into `out`, in order.
 #[cfg(dsp_kernels)]
-fn fpu_twin_mismatches() -> usize {
-    let mut state = 0x9e37_79b9u32;
-    let mut next = move || {
+fn collect<A>(out: &mut [A; OUTPUTS]) -> impl FnMut(A) + '_ {
+    let mut slots = out.iter_mut();
+    move |acc| {
+        if let Some(slot) = slots.next() {
+            *slot = acc;
+        }
+    }
+}
+
+/// xorshift32: the random codes of the twin checks (1 in 4 is full scale).
+#[cfg(dsp_kernels)]
+fn codes(seed: u32) -> impl FnMut() -> u32 {
+    let mut state = seed;
+    move || {
         state ^= state << 13;
         state ^= state >> 17;
         state ^= state << 5;
-        match state % 64 {
-            0 => 0.0,
-            1 => f32::INFINITY,
-            2 => f32::NAN,
-            _ => {
-                let mantissa = (state >> 8) as f32 / 16_777_216.0 - 0.5;
-                let scale = [1.0e-3, 0.1, 1.0, 7.0, 3.0e4][(state % 5) as usize];
-                mantissa * scale
+        state
+    }
+}
+
+/// Every assembly kernel of `tapline::kernel::arm_dsp` against its portable twin.
+#[cfg(dsp_kernels)]
+fn dsp_twin_mismatches() -> usize {
+    use tapline::kernel::{arm_dsp, dot_block, dot_reversed};
+    use tapline::num::DefaultAcc;
+    type Proven = Acc32<Smoother>;
+    let mut r = codes(0x2545_f491);
+    let mut q15 = move || match r() % 4 {
+        0 => {
+            if r() % 2 == 0 {
+                i16::MIN
+            } else {
+                i16::MAX
             }
         }
+        _ => (r() >> 16) as i16,
     };
-    let mut mismatches = 0;
-    let mut taps = [0f32; 40];
-    let mut span = [0f32; 52];
-    for len in 1..=taps.len() {
-        for v in taps.iter_mut().chain(span.iter_mut()) {
-            *v = next();
+    let mut r = codes(0x1234_5677);
+    let mut q31 = move || match r() % 4 {
+        0 => {
+            if r() % 2 == 0 {
+                i32::MIN
+            } else {
+                i32::MAX
+            }
         }
-        for outputs in 1..=13 {
-            let (Some(h), Some(x)) = (taps.get(..len), span.get(..len - 1 + outputs)) else {
-                return usize::MAX;
-            };
-            let mut fast = [0u32; 13];
-            let mut twin = [0u32; 13];
-            let (mut f, mut t) = (fast.iter_mut(), twin.iter_mut());
-            tapline::kernel::arm_dsp::dot_block_f32(h, x, |acc| {
-                if let Some(slot) = f.next() {
-                    *slot = acc.to_bits();
-                }
-            });
-            tapline::kernel::dot_block::<f32, f32, tapline::num::DefaultAcc>(h, x, |acc| {
-                if let Some(slot) = t.next() {
-                    *slot = acc.to_bits();
-                }
-            });
-            mismatches += fast.iter().zip(&twin).filter(|(a, b)| a != b).count();
+        _ => r() as i32,
+    };
+    let mut r = codes(0x9e37_79b9);
+    let mut f32s = move || match r() % 64 {
+        0 => 0.0,
+        1 => f32::INFINITY,
+        2 => f32::NAN,
+        v => {
+            let mantissa = (r() >> 8) as f32 / 16_777_216.0 - 0.5;
+            mantissa * [1.0e-3, 0.1, 1.0, 7.0, 3.0e4][(v % 5) as usize]
         }
-    }
-    hprintln!(
-        "fpu kernel twin (f32): tap counts 1..=40, 1..=13 outputs, mismatches: {}",
-        mismatches
+    };
+    let mut failures = 0;
+    failures += twin_mismatches(
+        "q15, proven i32 sums (SMLADX)",
+        &mut q15,
+        i16::MIN,
+        |h, x, fast, twin| {
+            arm_dsp::dot_block_q15_i32(h, x, collect(fast));
+            dot_block::<i16, i16, Proven>(h, x, collect(twin));
+        },
+        |h, x| {
+            (
+                arm_dsp::dot_reversed_q15_i32(7, h, x),
+                dot_reversed::<i16, i16, Proven>(7, h, x),
+            )
+        },
+        || [0i32; OUTPUTS],
     );
-    mismatches
+    failures += twin_mismatches(
+        "q15, i64 sums (SMLALDX)",
+        &mut q15,
+        i16::MIN,
+        |h, x, fast, twin| {
+            arm_dsp::dot_block_q15_i64(h, x, collect(fast));
+            dot_block::<i16, i16, DefaultAcc>(h, x, collect(twin));
+        },
+        |h, x| {
+            (
+                arm_dsp::dot_reversed_q15_i64(-7, h, x),
+                dot_reversed::<i16, i16, DefaultAcc>(-7, h, x),
+            )
+        },
+        || [0i64; OUTPUTS],
+    );
+    failures += twin_mismatches(
+        "q31, i64 sums (SMLAL)",
+        &mut q31,
+        i32::MIN,
+        |h, x, fast, twin| {
+            arm_dsp::dot_block_q31_i64(h, x, collect(fast));
+            dot_block::<i32, i32, DefaultAcc>(h, x, collect(twin));
+        },
+        |h, x| {
+            (
+                arm_dsp::dot_reversed_q31_i64(i64::MAX, h, x),
+                dot_reversed::<i32, i32, DefaultAcc>(i64::MAX, h, x),
+            )
+        },
+        || [0i64; OUTPUTS],
+    );
+    failures += twin_mismatches(
+        "f32 (VMLA.F32)",
+        &mut f32s,
+        f32::MAX,
+        |h, x, fast, twin| {
+            let (mut fast, mut twin) = (collect(fast), collect(twin));
+            arm_dsp::dot_block_f32(h, x, |a| fast(a.to_bits()));
+            dot_block::<f32, f32, DefaultAcc>(h, x, |a| twin(a.to_bits()));
+        },
+        |h, x| {
+            (
+                arm_dsp::dot_reversed_f32(0.5, h, x).to_bits(),
+                dot_reversed::<f32, f32, DefaultAcc>(0.5, h, x).to_bits(),
+            )
+        },
+        || [0u32; OUTPUTS],
+    );
+    failures
 }
 
 #[entry]
@@ -185,7 +262,6 @@ fn main() -> ! {
     #[cfg(dsp_kernels)]
     {
         failures += dsp_twin_mismatches();
-        failures += fpu_twin_mismatches();
     }
     for (name, rounding, want, saturations) in [
         (
