@@ -206,8 +206,42 @@ pub fn dot_block<S: MulAcc<T, W>, T: Sample, W>(
 
 /// Four consecutive outputs over `window` (`taps.len() + 3` samples): output m is
 /// Σ_k taps\[k\]·window\[L − 1 + m − k\].
+///
+/// On 64-bit hosts the four sums are written as one array updated from four consecutive
+/// samples per tap, the shape the compiler turns into SIMD (one vector of four sums, each lane
+/// still summed in tap order, so the results are the same bits). On microcontrollers, which
+/// have no such vectors, the scalar form below keeps the samples in registers instead.
 #[inline(always)]
 fn dot_reversed_four<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) -> [S::Acc; 4] {
+    if cfg!(any(target_arch = "x86_64", target_arch = "aarch64")) {
+        four_in_lanes::<S, T, W>(taps, window)
+    } else {
+        four_in_registers::<S, T, W>(taps, window)
+    }
+}
+
+/// [`dot_reversed_four`] as one array of four sums (vectorised on hosts).
+#[inline(always)]
+fn four_in_lanes<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) -> [S::Acc; 4] {
+    let mut acc = [S::ACC_ZERO; 4];
+    // Tap k meets window[L−1−k .. L+3−k]: the windows of 4, last to first.
+    for (&h, xs) in taps.iter().zip(window.windows(4).rev()) {
+        if let Some(&[x0, x1, x2, x3]) = xs.first_chunk::<4>() {
+            let [a0, a1, a2, a3] = acc;
+            acc = [
+                S::mul_acc(a0, h, x0),
+                S::mul_acc(a1, h, x1),
+                S::mul_acc(a2, h, x2),
+                S::mul_acc(a3, h, x3),
+            ];
+        }
+    }
+    acc
+}
+
+/// [`dot_reversed_four`] with the samples carried in registers (scalar cores).
+#[inline(always)]
+fn four_in_registers<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) -> [S::Acc; 4] {
     let zero = S::ACC_ZERO;
     let (mut a0, mut a1, mut a2, mut a3) = (zero, zero, zero, zero);
     let Some((older, &[mut x1, mut x2, mut x3])) = window.split_last_chunk::<3>() else {
@@ -251,4 +285,39 @@ fn dot_reversed_four<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) ->
         (x1, x2, x3) = (y, x1, x2);
     }
     [a0, a1, a2, a3]
+}
+
+#[cfg(test)]
+mod tests {
+    extern crate std;
+    use super::{four_in_lanes, four_in_registers};
+    use crate::num::DefaultAcc;
+    use std::vec::Vec;
+
+    /// The two shapes of the four-output sum give the same bits for every tap count from 1 to
+    /// 40: floats (where order matters) and Q15 at full scale.
+    #[test]
+    fn both_four_output_forms_agree() {
+        let mut state = 0x2545_f491u32;
+        let mut next = move || {
+            state ^= state << 13;
+            state ^= state >> 17;
+            state ^= state << 5;
+            state
+        };
+        for len in 1..=40 {
+            let taps: Vec<f32> = (0..len).map(|_| next() as f32 / 3.0e9 - 0.7).collect();
+            let xs: Vec<f32> = (0..len + 3).map(|_| next() as f32 / 1.0e9 - 2.0).collect();
+            let lanes = four_in_lanes::<f32, f32, DefaultAcc>(&taps, &xs);
+            let regs = four_in_registers::<f32, f32, DefaultAcc>(&taps, &xs);
+            assert_eq!(lanes.map(f32::to_bits), regs.map(f32::to_bits), "f32, {len} taps");
+            let taps: Vec<i16> = (0..len).map(|_| next() as i16 | i16::MIN).collect();
+            let xs: Vec<i16> = (0..len + 3).map(|_| (next() >> 7) as i16).collect();
+            assert_eq!(
+                four_in_lanes::<i16, i16, DefaultAcc>(&taps, &xs),
+                four_in_registers::<i16, i16, DefaultAcc>(&taps, &xs),
+                "q15, {len} taps"
+            );
+        }
+    }
 }
