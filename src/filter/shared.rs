@@ -270,5 +270,5 @@ pub(crate) fn count_event(counter: u32, event: bool) -> u32 {
 pub(crate) fn count_events(counter: u32, events: u32) -> u32 {
     let (sum, carried) = counter.overflowing_add(events);
     // Opaque to the optimiser, which would otherwise select on the carry with a branch.
-    sum | core::hint::black_box(0u32.wrapping_sub(u32::from(carried)))
+    sum | crate::num::fixed_point::opaque(0u32.wrapping_sub(u32::from(carried)))
 }

@@ -190,6 +190,16 @@ pub fn dot_block<S: MulAcc<T, W>, T: Sample, W>(
         return;
     }
     let mut rest = span;
+    // Hosts: sixteen outputs per pass, four SIMD vectors of four `f32` sums (measured against
+    // 4 and 8 with `benches/versus_numpy.py`: 0.63 / 1.91 / 2.50 times numpy at 64 taps).
+    if cfg!(any(target_arch = "x86_64", target_arch = "aarch64")) {
+        while let Some(window) = rest.get(..len + 15) {
+            for acc in in_lanes::<S, T, W, 16>(taps, window) {
+                emit(acc);
+            }
+            rest = rest.get(16..).unwrap_or(&[]);
+        }
+    }
     while let Some(window) = rest.get(..len + 3) {
         let [a0, a1, a2, a3] = dot_reversed_four::<S, T, W>(taps, window);
         emit(a0);
@@ -223,17 +233,24 @@ fn dot_reversed_four<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) ->
 /// [`dot_reversed_four`] as one array of four sums (vectorised on hosts).
 #[inline(always)]
 fn four_in_lanes<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) -> [S::Acc; 4] {
-    let mut acc = [S::ACC_ZERO; 4];
-    // Tap k meets window[L−1−k .. L+3−k]: the windows of 4, last to first.
-    for (&h, xs) in taps.iter().zip(window.windows(4).rev()) {
-        if let Some(&[x0, x1, x2, x3]) = xs.first_chunk::<4>() {
-            let [a0, a1, a2, a3] = acc;
-            acc = [
-                S::mul_acc(a0, h, x0),
-                S::mul_acc(a1, h, x1),
-                S::mul_acc(a2, h, x2),
-                S::mul_acc(a3, h, x3),
-            ];
+    in_lanes::<S, T, W, 4>(taps, window)
+}
+
+/// `K` consecutive outputs over `window` (`taps.len() + K − 1` samples) as one array of sums,
+/// each updated from K consecutive samples per tap: output m is Σ_k taps\[k\]·window\[L − 1 + m − k\],
+/// summed in ascending k.
+#[inline(always)]
+fn in_lanes<S: MulAcc<T, W>, T: Sample, W, const K: usize>(
+    taps: &[T],
+    window: &[S],
+) -> [S::Acc; K] {
+    let mut acc = [S::ACC_ZERO; K];
+    // Tap k meets window[L−1−k .. L−1−k+K]: the windows of K, last to first.
+    for (&h, xs) in taps.iter().zip(window.windows(K).rev()) {
+        if let Some(xs) = xs.first_chunk::<K>() {
+            for (a, &x) in acc.iter_mut().zip(xs) {
+                *a = S::mul_acc(*a, h, x);
+            }
         }
     }
     acc
@@ -310,7 +327,11 @@ mod tests {
             let xs: Vec<f32> = (0..len + 3).map(|_| next() as f32 / 1.0e9 - 2.0).collect();
             let lanes = four_in_lanes::<f32, f32, DefaultAcc>(&taps, &xs);
             let regs = four_in_registers::<f32, f32, DefaultAcc>(&taps, &xs);
-            assert_eq!(lanes.map(f32::to_bits), regs.map(f32::to_bits), "f32, {len} taps");
+            assert_eq!(
+                lanes.map(f32::to_bits),
+                regs.map(f32::to_bits),
+                "f32, {len} taps"
+            );
             let taps: Vec<i16> = (0..len).map(|_| next() as i16 | i16::MIN).collect();
             let xs: Vec<i16> = (0..len + 3).map(|_| (next() >> 7) as i16).collect();
             assert_eq!(

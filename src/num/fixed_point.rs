@@ -137,11 +137,25 @@ pub(crate) fn clamp_masked(q: i64, min: i64, max: i64) -> (i64, bool) {
     // `black_box` hides the masks' origin from the optimiser, which would otherwise turn
     // them back into compare-and-select — a branch on cores without conditional execution.
     // It changes no value, only keeps the cost the same for every input.
-    let below = core::hint::black_box(less_mask(q, min)); // all ones when q < min
-    let above = core::hint::black_box(less_mask(max, q)); // all ones when q > max
+    let below = opaque(less_mask(q, min)); // all ones when q < min
+    let above = opaque(less_mask(max, q)); // all ones when q > max
     let out = below | above;
     let value = (q & !out) | (min & below) | (max & above);
     (value, out & 1 == 1)
+}
+
+/// A value the optimiser may not reason about, where that is needed to keep a mask from
+/// becoming a branch: on cores without conditional execution (Cortex-M0, RISC-V) it goes
+/// through `black_box`, which costs a store and a load. Armv7E-M executes selects with `IT`
+/// blocks at a fixed cost, so there it is the value itself (the constant-time check in
+/// `examples/qemu` measures both).
+#[inline(always)]
+pub(crate) fn opaque<T>(value: T) -> T {
+    if cfg!(tapline_arm_dsp) {
+        value
+    } else {
+        core::hint::black_box(value)
+    }
 }
 
 /// All ones when `x < y`, else zero, for any two `i64`: the sign of x − y, corrected where the
