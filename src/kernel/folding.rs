@@ -43,6 +43,13 @@ use fixed::{FixedI16, FixedI32};
 /// assert_eq!(acc, 1 << 62);
 /// ```
 pub trait FoldMulAcc<T: Sample, W = DefaultAcc>: MulAcc<T, W> {
+    /// `true` where the plain (unfolded) single-output kernel is faster than the folded sum
+    /// and gives the same bits: fixed-point Q15 and Q31 on Armv7E-M, whose dual or long
+    /// multiply-accumulate kernels do two taps per instruction without the pre-add (the folded
+    /// and plain exact sums are equal, see the module docs). Always `false` for floats, whose
+    /// folded sum rounds differently.
+    const PLAIN_IS_FASTER: bool = false;
+
     /// `acc + tap·(a + b)`.
     fn mul_acc_sum(acc: Self::Acc, tap: T, a: Self, b: Self) -> Self::Acc;
     /// `acc + tap·(a − b)`.
@@ -50,8 +57,10 @@ pub trait FoldMulAcc<T: Sample, W = DefaultAcc>: MulAcc<T, W> {
 }
 
 macro_rules! fold_i64 {
-    ($( [$($gen:tt)*] $s:ty => $t:ty; )*) => {$(
+    ($( [$($gen:tt)*] $s:ty => $t:ty, $plain:expr; )*) => {$(
         impl<$($gen)*> FoldMulAcc<$t> for $s {
+            const PLAIN_IS_FASTER: bool = $plain;
+
             #[inline(always)]
             fn mul_acc_sum(acc: i64, tap: $t, a: Self, b: Self) -> i64 {
                 // Pre-add exact in i64; the product is taken modulo 2^64 (see the module docs).
@@ -66,10 +75,10 @@ macro_rules! fold_i64 {
 }
 
 fold_i64! {
-    [] i16 => i16;
-    [] i32 => i32;
-    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>;
-    [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>;
+    [] i16 => i16, cfg!(all(target_arch = "arm", tapline_arm_dsp));
+    [] i32 => i32, cfg!(all(target_arch = "arm", tapline_arm_dsp));
+    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>, false;
+    [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>, false;
 }
 
 macro_rules! fold_i128 {
