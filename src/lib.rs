@@ -50,7 +50,7 @@
 //! ```
 #![no_std]
 #![warn(missing_docs)]
-// Only `kernel::arm_dsp` may opt out (inline assembly with a tested safe twin).
+// Only `kernel::arm` may opt out (inline assembly with a tested safe twin).
 #![deny(unsafe_code)]
 #![cfg_attr(
     not(test),

@@ -38,6 +38,10 @@ fn main() {
     println!("cargo:rerun-if-changed=build.rs");
     // The library's DSP kernels exist on Armv7E-M (its own build script decides the same way).
     println!("cargo::rustc-check-cfg=cfg(dsp_kernels)");
+    println!("cargo::rustc-check-cfg=cfg(v6m_kernels)");
+    if target.starts_with("thumbv6m-") {
+        println!("cargo::rustc-cfg=v6m_kernels");
+    }
     if target.starts_with("thumbv7em-") {
         println!("cargo::rustc-cfg=dsp_kernels");
     }

@@ -84,16 +84,16 @@ proven_mul_acc! {
     [] i16; {
         // The dual multiply-accumulate kernel, bit-identical to the portable one (its module
         // says how that is tested).
-        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
+        #[cfg(all(target_arch = "arm", any(tapline_arm_dsp, tapline_armv6m)))]
         #[inline(always)]
         fn dot_block(taps: &[i16], span: &[i16], emit: impl FnMut(i32)) {
-            crate::kernel::arm_dsp::dot_block_q15_i32(taps, span, emit);
+            crate::kernel::arm::dot_block_q15_i32(taps, span, emit);
         }
 
         #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
         #[inline(always)]
         fn dot_reversed(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
-            crate::kernel::arm_dsp::dot_reversed_q15_i32(acc, taps, xs)
+            crate::kernel::arm::dot_reversed_q15_i32(acc, taps, xs)
         }
     }
     [Fs: LeEqU16] FixedI16<Fs>; {}

@@ -44,10 +44,12 @@ use fixed::{FixedI16, FixedI32};
 /// ```
 pub trait FoldMulAcc<T: Sample, W = DefaultAcc>: MulAcc<T, W> {
     /// `true` where the plain (unfolded) single-output kernel is faster than the folded sum
-    /// and gives the same bits: fixed-point Q15 and Q31 on Armv7E-M, whose dual or long
-    /// multiply-accumulate kernels do two taps per instruction without the pre-add (the folded
-    /// and plain exact sums are equal, see the module docs). Always `false` for floats, whose
-    /// folded sum rounds differently.
+    /// and gives the same bits (the folded and plain exact sums are equal, see the module
+    /// docs): 16-bit samples on 32-bit cores, where a pre-added pair needs 17 bits and its
+    /// product a 64-bit multiply (a library call on the Cortex-M0: 31.5 against 11.2
+    /// instructions per tap, `examples/qemu/COSTS.md`) while a plain product fits 32 bits; and
+    /// Q31 on Armv7E-M, whose long multiply-accumulate kernel beats the pre-add. Always `false`
+    /// for floats, whose folded sum rounds differently.
     const PLAIN_IS_FASTER: bool = false;
 
     /// `acc + tap·(a + b)`.
@@ -75,9 +77,9 @@ macro_rules! fold_i64 {
 }
 
 fold_i64! {
-    [] i16 => i16, cfg!(all(target_arch = "arm", tapline_arm_dsp));
+    [] i16 => i16, cfg!(target_pointer_width = "32");
     [] i32 => i32, cfg!(all(target_arch = "arm", tapline_arm_dsp));
-    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>, false;
+    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>, cfg!(target_pointer_width = "32");
     [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>, false;
 }
 

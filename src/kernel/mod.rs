@@ -7,8 +7,8 @@
 //! [`portable`] holds the reference kernels, written for every target. Faster target-specific
 //! kernels, when added, sit beside it with the same names and are tested bit-identical to it.
 
-#[cfg(all(target_arch = "arm", tapline_arm_dsp))]
-pub mod arm_dsp;
+#[cfg(all(target_arch = "arm", any(tapline_arm_dsp, tapline_armv6m)))]
+pub mod arm;
 pub mod folding;
 pub mod portable;
 

@@ -206,32 +206,32 @@ macro_rules! fixed_mul_acc {
 }
 
 // Q15 and Q31 use the assembly kernels on Armv7E-M; they are bit-identical to the portable
-// ones (`kernel::arm_dsp` says how that is tested).
+// ones (`kernel::arm` says how that is tested).
 fixed_mul_acc! {
     [] i16 => i16; {
         #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
         #[inline(always)]
         fn dot_block(taps: &[i16], span: &[i16], emit: impl FnMut(i64)) {
-            crate::kernel::arm_dsp::dot_block_q15_i64(taps, span, emit);
+            crate::kernel::arm::dot_block_q15_i64(taps, span, emit);
         }
 
         #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
         #[inline(always)]
         fn dot_reversed(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
-            crate::kernel::arm_dsp::dot_reversed_q15_i64(acc, taps, xs)
+            crate::kernel::arm::dot_reversed_q15_i64(acc, taps, xs)
         }
     }
     [] i32 => i32; {
         #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
         #[inline(always)]
         fn dot_block(taps: &[i32], span: &[i32], emit: impl FnMut(i64)) {
-            crate::kernel::arm_dsp::dot_block_q31_i64(taps, span, emit);
+            crate::kernel::arm::dot_block_q31_i64(taps, span, emit);
         }
 
         #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
         #[inline(always)]
         fn dot_reversed(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
-            crate::kernel::arm_dsp::dot_reversed_q31_i64(acc, taps, xs)
+            crate::kernel::arm::dot_reversed_q31_i64(acc, taps, xs)
         }
     }
     [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>; {}

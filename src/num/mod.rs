@@ -143,7 +143,7 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     /// The provided method is the portable [`dot_block`](crate::kernel::dot_block). An
     /// implementation may use a target kernel instead only if it is bit-identical to it: Q15
     /// samples with the proven 32-bit accumulator use the dual multiply-accumulate kernel in
-    /// `kernel::arm_dsp` on Armv7E-M cores.
+    /// `kernel::arm` on Armv7E-M cores.
     ///
     /// ```
     /// use tapline::MulAcc;
@@ -164,7 +164,7 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     /// [`dot_reversed`](crate::kernel::dot_reversed)).
     ///
     /// The provided method is the portable kernel; Q15, Q31 and `f32` use the assembly kernels
-    /// of `kernel::arm_dsp` on Armv7E-M, which are bit-identical to it.
+    /// of `kernel::arm` on Armv7E-M, which are bit-identical to it.
     ///
     /// ```
     /// use tapline::MulAcc;

@@ -1,19 +1,10 @@
-//! Kernels for cores with the Armv7E-M DSP extension (Cortex-M4, M7), in inline assembly. The
-//! only `unsafe` in the crate is here, and every function has a safe portable twin
-//! ([`dot_block`](super::dot_block)) that it is tested bit-identical against: on the host by
-//! running the portable twin against the exact integer model, and on the emulated Cortex-M4F
-//! (`examples/qemu`, bin `check`) by running this kernel and its twin on the same data,
-//! including full-scale and wrapping sums.
+//! Armv7E-M (Cortex-M4, M7): the DSP extension's dual and long multiply-accumulates, and the
+//! single-precision FPU on the hard-float triple.
 //!
-//! Why assembly: the dual 16-bit multiply-accumulate (`SMLADX`) does two taps in one
-//! instruction, and the compiler does not keep four outputs' sums and the sample pairs in
-//! registers on its own (it spills, about 3.6 instructions per tap instead of under 1).
-//!
-//! Needs unaligned word loads, which Armv7-M allows for `LDR` unless the firmware has set
-//! `SCB->CCR.UNALIGN_TRP` (off at reset). A sample pair starts at every other half-word, so half
-//! of the pair loads are unaligned; they cost the same instruction count, and on a Cortex-M4 one
-//! extra bus cycle each.
-#![allow(unsafe_code)]
+//! The Q15 kernels need unaligned word loads, which Armv7-M allows for `LDR` unless the
+//! firmware has set `SCB->CCR.UNALIGN_TRP` (off at reset). A sample pair starts at every other
+//! half-word, so half of the pair loads are unaligned; they cost the same instruction count,
+//! and on a Cortex-M4 one extra bus cycle each.
 
 use core::arch::asm;
 
@@ -21,7 +12,7 @@ use core::arch::asm;
 /// `i + taps.len() ≤ span.len()`, in ascending `i`, calls `emit(Σ_k taps[k]·span[i + L − 1 − k])`
 /// (L = `taps.len()`), the products exact (Q30) and the sum wrapping modulo 2^32.
 ///
-/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) with the proven 32-bit
+/// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) with the proven 32-bit
 /// accumulator ([`Acc32`](crate::headroom::Acc32)), whose sums wrap the same way; with taps
 /// whose headroom proof holds, nothing wraps and every sum is exact. The order of the terms
 /// differs (two at a time) but integer sums modulo 2^32 do not depend on order.
@@ -143,7 +134,7 @@ fn four_outputs(taps: &[i16], window: &[i16]) -> [i32; 4] {
 /// The block sum of `f32` samples and taps: for every `i` with `i + taps.len() ≤ span.len()`,
 /// in ascending `i`, calls `emit(Σ_k taps[k]·span[i + L − 1 − k])`.
 ///
-/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) for `f32`: each output is
+/// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) for `f32`: each output is
 /// summed from +0.0 in ascending tap index, and `VMLA.F32` rounds the product and then the sum,
 /// exactly as the portable `acc + tap·x` does (it is not the fused `VFMA`). NaN and ±∞
 /// propagate as there.
@@ -282,7 +273,7 @@ fn four_outputs_f32(taps: &[f32], window: &[f32]) -> [f32; 4] {
 
 /// The single-output sums (per-sample calls): `acc + Σ_k taps[k]·xs[len − 1 − k]` over
 /// `k < len = min(taps.len(), xs.len())`, `xs` read backward from its end — the contract of
-/// [`dot_reversed`](super::dot_reversed), which is each function's portable twin.
+/// [`dot_reversed`](crate::kernel::dot_reversed), which is each function's portable twin.
 ///
 /// Returns the equal-length tails the assembly works on: `taps[..len]` and the last `len`
 /// samples.
@@ -298,7 +289,7 @@ fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X]) {
 /// Q15 samples and taps, one output, 32-bit wrapping sum (the proven accumulator): 16 taps per
 /// loop pass as 8 `SMLADX`, each after one tap-pair and one sample-pair load.
 ///
-/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) with
+/// **Numerics:** bit-identical to [`dot_reversed`](crate::kernel::dot_reversed) with
 /// [`Acc32`](crate::headroom::Acc32) (integer sums modulo 2^32 do not depend on order).
 #[inline]
 #[must_use]
@@ -364,7 +355,7 @@ pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
 /// Q15 samples and taps, one output, exact 64-bit sum (the default accumulator): as
 /// [`dot_reversed_q15_i32`] with `SMLALDX`.
 ///
-/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `i16` with the
+/// **Numerics:** bit-identical to [`dot_reversed`](crate::kernel::dot_reversed) for `i16` with the
 /// default accumulator: each product is exact and the 64-bit sum wraps modulo 2^64 as there.
 #[inline]
 #[must_use]
@@ -429,7 +420,7 @@ pub fn dot_reversed_q15_i64(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
 /// Q31 samples and taps, one output, exact 64-bit sum: 4 taps per loop pass, two `LDRD` of
 /// taps, two of samples and four `SMLAL`.
 ///
-/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `i32` with the
+/// **Numerics:** bit-identical to [`dot_reversed`](crate::kernel::dot_reversed) for `i32` with the
 /// default accumulator (exact products, sum modulo 2^64).
 #[inline]
 #[must_use]
@@ -483,10 +474,10 @@ pub fn dot_reversed_q31_i64(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
 }
 
 /// The block sum of Q31 samples and taps in exact 64-bit sums: as
-/// [`dot_block`](super::dot_block), two outputs per pass over the taps (four 64-bit sums would
+/// [`dot_block`](crate::kernel::dot_block), two outputs per pass over the taps (four 64-bit sums would
 /// not fit in the registers beside the taps and samples).
 ///
-/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) for `i32` with the default
+/// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) for `i32` with the default
 /// accumulator. **Cost:** per two taps and two outputs one `LDRD` of taps, one of samples and
 /// four `SMLAL`.
 #[inline]
@@ -573,9 +564,9 @@ fn two_outputs_q31(taps: &[i32], window: &[i32]) -> [i64; 2] {
 }
 
 /// The block sum of Q15 samples and taps in exact 64-bit sums (the default accumulator): as
-/// [`dot_block`](super::dot_block), two outputs per pass with `SMLALDX`.
+/// [`dot_block`](crate::kernel::dot_block), two outputs per pass with `SMLALDX`.
 ///
-/// **Numerics:** bit-identical to [`dot_block`](super::dot_block) for `i16` with the default
+/// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) for `i16` with the default
 /// accumulator. **Cost:** per two taps and two outputs one tap-pair load, two sample-pair
 /// loads (one of them unaligned) and two `SMLALDX`.
 #[inline]
@@ -667,7 +658,7 @@ fn two_outputs_q15(taps: &[i16], window: &[i16]) -> [i64; 2] {
 /// `f32`, one output: 8 taps per loop pass (two `VLDM` of taps, two `VLDMDB` of samples, eight
 /// `VMLA.F32` into one sum, in ascending tap order).
 ///
-/// **Numerics:** bit-identical to [`dot_reversed`](super::dot_reversed) for `f32`: the same
+/// **Numerics:** bit-identical to [`dot_reversed`](crate::kernel::dot_reversed) for `f32`: the same
 /// products and sums in the same order, each rounded once (`VMLA` is not fused).
 #[cfg(tapline_arm_fpu)]
 #[inline]
