@@ -120,7 +120,7 @@ def main():
         text = sum(e - a for (a, e, _) in set().union(*(visited[m] for m in modes.values())))
         label = {"i16": "Q15 (i16), i64 acc", "acc32": "Q15, proven i32 acc",
                  "i32": "Q31 (i32)", "f32": "f32",
-                 "linphase": "Q15 linear-phase (folded), i64 acc",
+                 "linphase": "Q15 linear-phase, i64 acc",
                  "dec4": "Q15 decimator by 4 (polyphase), i64 acc"}[ty]
         print(f"| {label} | {taps} | {per['block64']:.2f} | {per['block256']:.2f} | "
               f"{per['sample']:.2f} | {per['sample'] / per['block64']:.2f} | {text} | "

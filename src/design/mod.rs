@@ -18,7 +18,7 @@
 //! | `kaiser.rs` | Kaiser's estimates: [`kaiser::beta_for_attenuation`], [`kaiser::length_for_transition`], [`kaiser::attenuation_for_length`] |
 //! | `band.rs` | windowed-sinc [`Band`] designs: [`windowed_sinc`] |
 //! | `spec.rs` | [`Spec`]: a band spec → a Kaiser design that meets it, and measurement against it |
-//! | `equiripple.rs` | Parks–McClellan ([`equiripple`], `std`) |
+//! | `equiripple.rs` | Parks–McClellan (`equiripple`, `std` only) |
 //! | `savitzky_golay.rs` | [`savitzky_golay_smoother`], [`savitzky_golay_slope`] |
 //! | `moving_average.rs` | [`moving_average`] (boxcar) |
 //! | `quantize.rs` | [`quantize`]: float taps → Q15/Q31/`fixed` with exact DC gain |

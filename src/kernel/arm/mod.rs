@@ -9,8 +9,8 @@
 //! on its own, and does not pair 16-bit samples for the dual multiply-accumulate; it spilled to
 //! the stack at about 3.6 instructions per tap (Cortex-M4F, Q15) where these loops take 0.94.
 //!
-//! * [`dsp`], re-exported here on `thumbv7em-*`: Q15, Q31 and `f32` kernels for Armv7E-M.
-//! * [`v6m`], re-exported here on `thumbv6m-*`: the Q15 block kernel for Armv6-M.
+//! * `dsp`, re-exported here on `thumbv7em-*`: Q15, Q31 and `f32` kernels for Armv7E-M.
+//! * `v6m`, re-exported here on `thumbv6m-*`: the Q15 block kernel for Armv6-M.
 #![allow(unsafe_code)]
 
 #[cfg(tapline_arm_dsp)]
