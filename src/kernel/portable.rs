@@ -186,30 +186,65 @@ pub fn dot_block<S: MulAcc<T, W>, T: Sample, W>(
     mut emit: impl FnMut(S::Acc),
 ) {
     let len = taps.len();
-    if len == 0 {
-        return;
-    }
     let mut rest = span;
     // Hosts: sixteen outputs per pass, four SIMD vectors of four `f32` sums (measured against
     // 4 and 8 with `benches/versus_numpy.py`: 0.63 / 1.91 / 2.50 times numpy at 64 taps).
     if cfg!(any(target_arch = "x86_64", target_arch = "aarch64")) {
-        while let Some(window) = rest.get(..len + 15) {
-            for acc in in_lanes::<S, T, W, 16>(taps, window) {
-                emit(acc);
-            }
-            rest = rest.get(16..).unwrap_or(&[]);
+        rest =
+            groups_of::<S, S::Acc, 16>(len, rest, |w| in_lanes::<S, T, W, 16>(taps, w), &mut emit);
+    }
+    let rest = groups_of::<S, S::Acc, 4>(
+        len,
+        rest,
+        |w| dot_reversed_four::<S, T, W>(taps, w),
+        &mut emit,
+    );
+    singles(
+        len,
+        rest,
+        |w| dot_reversed::<S, T, W>(S::ACC_ZERO, taps, w),
+        emit,
+    );
+}
+
+/// The driver of every block kernel (portable and assembly): while `span` holds `K` more
+/// outputs of a `len`-tap sum (`len + K − 1` samples), hands that window to `group` and emits
+/// its K sums in order; returns the rest of the span, which holds fewer than K outputs.
+/// Nothing when `len` is 0.
+#[inline(always)]
+pub(crate) fn groups_of<'x, X, A, const K: usize>(
+    len: usize,
+    span: &'x [X],
+    mut group: impl FnMut(&[X]) -> [A; K],
+    emit: &mut impl FnMut(A),
+) -> &'x [X] {
+    if len == 0 {
+        return &[];
+    }
+    let mut rest = span;
+    while let Some(window) = rest.get(..len + K - 1) {
+        for acc in group(window) {
+            emit(acc);
         }
+        rest = rest.get(K..).unwrap_or(&[]);
     }
-    while let Some(window) = rest.get(..len + 3) {
-        let [a0, a1, a2, a3] = dot_reversed_four::<S, T, W>(taps, window);
-        emit(a0);
-        emit(a1);
-        emit(a2);
-        emit(a3);
-        rest = rest.get(4..).unwrap_or(&[]);
+    rest
+}
+
+/// The remaining outputs of a block, one at a time: `single` over each `len`-sample window.
+#[inline(always)]
+pub(crate) fn singles<X, A>(
+    len: usize,
+    span: &[X],
+    mut single: impl FnMut(&[X]) -> A,
+    mut emit: impl FnMut(A),
+) {
+    if len == 0 {
+        return;
     }
+    let mut rest = span;
     while let Some(window) = rest.get(..len) {
-        emit(dot_reversed::<S, T, W>(S::ACC_ZERO, taps, window));
+        emit(single(window));
         rest = rest.get(1..).unwrap_or(&[]);
     }
 }

@@ -6,7 +6,25 @@
 //! half-word, so half of the pair loads are unaligned; they cost the same instruction count,
 //! and on a Cortex-M4 one extra bus cycle each.
 
+use super::{add_remaining, plain_sum, reversed_sum_i32};
+use crate::kernel::portable::{groups_of, singles};
+use crate::num::MulAcc;
 use core::arch::asm;
+
+// The remainder sums, term by term with the portable twin's `mul_acc`.
+#[inline(always)]
+fn portable_q15(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
+    plain_sum(acc, taps, xs, <i16 as MulAcc<i16>>::mul_acc)
+}
+#[inline(always)]
+fn portable_q31(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
+    plain_sum(acc, taps, xs, <i32 as MulAcc<i32>>::mul_acc)
+}
+#[cfg(tapline_arm_fpu)]
+#[inline(always)]
+fn portable_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
+    plain_sum(acc, taps, xs, <f32 as MulAcc<f32>>::mul_acc)
+}
 
 /// The block sum of Q15 samples with Q15 taps in a 32-bit accumulator: for every `i` with
 /// `i + taps.len() ≤ span.len()`, in ascending `i`, calls `emit(Σ_k taps[k]·span[i + L − 1 − k])`
@@ -21,29 +39,8 @@ use core::arch::asm;
 /// load, two sample-pair loads and four `SMLADX`.
 #[inline]
 pub fn dot_block_q15_i32(taps: &[i16], span: &[i16], mut emit: impl FnMut(i32)) {
-    let len = taps.len();
-    if len == 0 {
-        return;
-    }
-    let mut rest = span;
-    while let Some(window) = rest.get(..len + 3) {
-        for acc in four_outputs(taps, window) {
-            emit(acc);
-        }
-        rest = rest.get(4..).unwrap_or(&[]);
-    }
-    while let Some(window) = rest.get(..len) {
-        emit(reversed_sum(0, taps, window));
-        rest = rest.get(1..).unwrap_or(&[]);
-    }
-}
-
-/// `acc + Σ_k taps[k]·xs[len − 1 − k]`, wrapping: the plain loop for remainders.
-#[inline(always)]
-fn reversed_sum(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
-    taps.iter().zip(xs.iter().rev()).fold(acc, |acc, (&h, &x)| {
-        acc.wrapping_add(i32::from(h) * i32::from(x))
-    })
+    let rest = groups_of::<_, _, 4>(taps.len(), span, |w| four_outputs(taps, w), &mut emit);
+    singles(taps.len(), rest, |w| reversed_sum_i32(0, taps, w), emit);
 }
 
 /// Output m < 4 over `window` (L + 3 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].
@@ -121,14 +118,7 @@ fn four_outputs(taps: &[i16], window: &[i16]) -> [i32; 4] {
     }
     // The taps the assembly did not take (all of them if it did not run), in the same sums.
     let done = if newest.is_some() { 8 * groups } else { 0 };
-    let taps_left = taps.get(done..).unwrap_or(&[]);
-    for (m, acc) in acc.iter_mut().enumerate() {
-        // Output m, tap k ≥ done reads window[L − 1 + m − k]: the window up to L + m − done,
-        // read backward.
-        let xs = window.get(..len + m - done).unwrap_or(&[]);
-        *acc = reversed_sum(*acc, taps_left, xs);
-    }
-    acc
+    add_remaining(acc, taps, window, done, reversed_sum_i32)
 }
 
 /// The block sum of `f32` samples and taps: for every `i` with `i + taps.len() ≤ span.len()`,
@@ -144,30 +134,8 @@ fn four_outputs(taps: &[i16], window: &[i16]) -> [i32; 4] {
 #[cfg(tapline_arm_fpu)]
 #[inline]
 pub fn dot_block_f32(taps: &[f32], span: &[f32], mut emit: impl FnMut(f32)) {
-    let len = taps.len();
-    if len == 0 {
-        return;
-    }
-    let mut rest = span;
-    while let Some(window) = rest.get(..len + 3) {
-        for acc in four_outputs_f32(taps, window) {
-            emit(acc);
-        }
-        rest = rest.get(4..).unwrap_or(&[]);
-    }
-    while let Some(window) = rest.get(..len) {
-        emit(reversed_sum_f32(0.0, taps, window));
-        rest = rest.get(1..).unwrap_or(&[]);
-    }
-}
-
-/// `acc + Σ_k taps[k]·xs[len − 1 − k]` in ascending k: the plain loop for remainders.
-#[cfg(tapline_arm_fpu)]
-#[inline(always)]
-fn reversed_sum_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
-    taps.iter()
-        .zip(xs.iter().rev())
-        .fold(acc, |acc, (&h, &x)| acc + h * x)
+    let rest = groups_of::<_, _, 4>(taps.len(), span, |w| four_outputs_f32(taps, w), &mut emit);
+    singles(taps.len(), rest, |w| portable_f32(0.0, taps, w), emit);
 }
 
 /// Output m < 4 over `window` (L + 3 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].
@@ -263,12 +231,7 @@ fn four_outputs_f32(taps: &[f32], window: &[f32]) -> [f32; 4] {
         }
     }
     let done = if newest.is_some() { 8 * groups } else { 0 };
-    let taps_left = taps.get(done..).unwrap_or(&[]);
-    for (m, acc) in acc.iter_mut().enumerate() {
-        let xs = window.get(..len + m - done).unwrap_or(&[]);
-        *acc = reversed_sum_f32(*acc, taps_left, xs);
-    }
-    acc
+    add_remaining(acc, taps, window, done, portable_f32)
 }
 
 /// The single-output sums (per-sample calls): `acc + Σ_k taps[k]·xs[len − 1 − k]` over
@@ -345,11 +308,8 @@ pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
         }
     }
     let done = if end.is_some() { 16 * groups } else { 0 };
-    reversed_sum(
-        acc,
-        taps.get(done..).unwrap_or(&[]),
-        xs.get(..xs.len() - done).unwrap_or(&[]),
-    )
+    let [acc] = add_remaining([acc], taps, xs, done, reversed_sum_i32);
+    acc
 }
 
 /// Q15 samples and taps, one output, exact 64-bit sum (the default accumulator): as
@@ -408,13 +368,8 @@ pub fn dot_reversed_q15_i64(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
         }
     }
     let done = if end.is_some() { 16 * groups } else { 0 };
-    taps.get(done..)
-        .unwrap_or(&[])
-        .iter()
-        .zip(xs.get(..xs.len() - done).unwrap_or(&[]).iter().rev())
-        .fold(join64(lo, hi), |acc, (&h, &x)| {
-            acc.wrapping_add(i64::from(i32::from(h) * i32::from(x)))
-        })
+    let [acc] = add_remaining([join64(lo, hi)], taps, xs, done, portable_q15);
+    acc
 }
 
 /// Q31 samples and taps, one output, exact 64-bit sum: 4 taps per loop pass, two `LDRD` of
@@ -464,13 +419,8 @@ pub fn dot_reversed_q31_i64(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
         }
     }
     let done = if end.is_some() { 4 * groups } else { 0 };
-    taps.get(done..)
-        .unwrap_or(&[])
-        .iter()
-        .zip(xs.get(..xs.len() - done).unwrap_or(&[]).iter().rev())
-        .fold(join64(lo, hi), |acc, (&h, &x)| {
-            acc.wrapping_add(i64::from(h) * i64::from(x))
-        })
+    let [acc] = add_remaining([join64(lo, hi)], taps, xs, done, portable_q31);
+    acc
 }
 
 /// The block sum of Q31 samples and taps in exact 64-bit sums: as
@@ -482,20 +432,8 @@ pub fn dot_reversed_q31_i64(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
 /// four `SMLAL`.
 #[inline]
 pub fn dot_block_q31_i64(taps: &[i32], span: &[i32], mut emit: impl FnMut(i64)) {
-    let len = taps.len();
-    if len == 0 {
-        return;
-    }
-    let mut rest = span;
-    while let Some(window) = rest.get(..len + 1) {
-        let [a0, a1] = two_outputs_q31(taps, window);
-        emit(a0);
-        emit(a1);
-        rest = rest.get(2..).unwrap_or(&[]);
-    }
-    if let Some(window) = rest.get(..len) {
-        emit(dot_reversed_q31_i64(0, taps, window));
-    }
+    let rest = groups_of::<_, _, 2>(taps.len(), span, |w| two_outputs_q31(taps, w), &mut emit);
+    singles(taps.len(), rest, |w| dot_reversed_q31_i64(0, taps, w), emit);
 }
 
 /// Outputs 0 and 1 over `window` (L + 1 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].
@@ -550,17 +488,13 @@ fn two_outputs_q31(taps: &[i32], window: &[i32]) -> [i64; 2] {
         }
     }
     let done = if newest.is_some() { 4 * groups } else { 0 };
-    let taps_left = taps.get(done..).unwrap_or(&[]);
-    let rest = |acc: i64, m: usize| {
-        let xs = window.get(..len + m - done).unwrap_or(&[]);
-        taps_left
-            .iter()
-            .zip(xs.iter().rev())
-            .fold(acc, |acc, (&h, &x)| {
-                acc.wrapping_add(i64::from(h) * i64::from(x))
-            })
-    };
-    [rest(join64(lo0, hi0), 0), rest(join64(lo1, hi1), 1)]
+    add_remaining(
+        [join64(lo0, hi0), join64(lo1, hi1)],
+        taps,
+        window,
+        done,
+        portable_q31,
+    )
 }
 
 /// The block sum of Q15 samples and taps in exact 64-bit sums (the default accumulator): as
@@ -571,20 +505,8 @@ fn two_outputs_q31(taps: &[i32], window: &[i32]) -> [i64; 2] {
 /// loads (one of them unaligned) and two `SMLALDX`.
 #[inline]
 pub fn dot_block_q15_i64(taps: &[i16], span: &[i16], mut emit: impl FnMut(i64)) {
-    let len = taps.len();
-    if len == 0 {
-        return;
-    }
-    let mut rest = span;
-    while let Some(window) = rest.get(..len + 1) {
-        let [a0, a1] = two_outputs_q15(taps, window);
-        emit(a0);
-        emit(a1);
-        rest = rest.get(2..).unwrap_or(&[]);
-    }
-    if let Some(window) = rest.get(..len) {
-        emit(dot_reversed_q15_i64(0, taps, window));
-    }
+    let rest = groups_of::<_, _, 2>(taps.len(), span, |w| two_outputs_q15(taps, w), &mut emit);
+    singles(taps.len(), rest, |w| dot_reversed_q15_i64(0, taps, w), emit);
 }
 
 /// Outputs 0 and 1 over `window` (L + 1 samples), Q15, 64-bit sums.
@@ -642,17 +564,13 @@ fn two_outputs_q15(taps: &[i16], window: &[i16]) -> [i64; 2] {
         }
     }
     let done = if newest.is_some() { 8 * groups } else { 0 };
-    let taps_left = taps.get(done..).unwrap_or(&[]);
-    let rest = |acc: i64, m: usize| {
-        let xs = window.get(..len + m - done).unwrap_or(&[]);
-        taps_left
-            .iter()
-            .zip(xs.iter().rev())
-            .fold(acc, |acc, (&h, &x)| {
-                acc.wrapping_add(i64::from(i32::from(h) * i32::from(x)))
-            })
-    };
-    [rest(join64(lo0, hi0), 0), rest(join64(lo1, hi1), 1)]
+    add_remaining(
+        [join64(lo0, hi0), join64(lo1, hi1)],
+        taps,
+        window,
+        done,
+        portable_q15,
+    )
 }
 
 /// `f32`, one output: 8 taps per loop pass (two `VLDM` of taps, two `VLDMDB` of samples, eight
@@ -713,12 +631,8 @@ pub fn dot_reversed_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
         }
     }
     let done = if end.is_some() { 8 * groups } else { 0 };
-    let [acc] = sum;
-    reversed_sum_f32(
-        acc,
-        taps.get(done..).unwrap_or(&[]),
-        xs.get(..xs.len() - done).unwrap_or(&[]),
-    )
+    let [acc] = add_remaining(sum, taps, xs, done, portable_f32);
+    acc
 }
 
 /// An `i64` as its (low, high) 32-bit halves, the register pair `SMLAL`/`SMLALD` accumulate.

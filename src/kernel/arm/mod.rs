@@ -22,3 +22,49 @@ pub use dsp::*;
 pub mod v6m;
 #[cfg(tapline_armv6m)]
 pub use v6m::*;
+
+/// `acc + Σ_k taps[k]·xs[len − 1 − k]` term by term with `mul_acc`, in ascending k: the plain
+/// loop for the taps an assembly loop leaves over. The kernels pass the per-term arithmetic of
+/// their portable twin (`MulAcc::mul_acc`), so the remainder is summed exactly as there; a
+/// plain fold keeps the per-output cost small where no taps are left.
+#[inline(always)]
+fn plain_sum<T: Copy, X: Copy, A>(
+    acc: A,
+    taps: &[T],
+    xs: &[X],
+    mul_acc: impl Fn(A, T, X) -> A,
+) -> A {
+    taps.iter()
+        .zip(xs.iter().rev())
+        .fold(acc, |acc, (&h, &x)| mul_acc(acc, h, x))
+}
+
+/// Q15 in a 32-bit sum wrapping modulo 2^32 (the proven accumulator's `mul_acc`, which needs a
+/// proof type to be named).
+#[inline(always)]
+fn reversed_sum_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
+    plain_sum(acc, taps, xs, |acc: i32, h: i16, x: i16| {
+        acc.wrapping_add(i32::from(h) * i32::from(x))
+    })
+}
+
+/// Adds the taps an assembly loop did not take, `taps[done..]`, to each of its K sums: output
+/// m (summing over `window`, `taps.len() + m` samples or more) reads
+/// `window[L − 1 + m − k]` for tap k, i.e. `window[..L + m − done]` backward, with `sum` the
+/// plain sum for that type. With `done` = 0 this is the whole sum.
+#[inline(always)]
+fn add_remaining<T, X, A: Copy, const K: usize>(
+    mut sums: [A; K],
+    taps: &[T],
+    window: &[X],
+    done: usize,
+    sum: impl Fn(A, &[T], &[X]) -> A,
+) -> [A; K] {
+    let len = taps.len();
+    let taps_left = taps.get(done..).unwrap_or(&[]);
+    for (m, acc) in sums.iter_mut().enumerate() {
+        let xs = window.get(..(len + m).saturating_sub(done)).unwrap_or(&[]);
+        *acc = sum(*acc, taps_left, xs);
+    }
+    sums
+}

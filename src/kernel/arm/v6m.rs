@@ -9,6 +9,8 @@
 //! the six that `asm!` may use (r6 and r7 are reserved), so this is as low as it goes here;
 //! the output step (rounding, saturation, store) comes on top.
 
+use super::{add_remaining, reversed_sum_i32};
+use crate::kernel::portable::{groups_of, singles};
 use core::arch::asm;
 
 /// The block sum of Q15 samples with Q15 taps in a 32-bit accumulator (the proven path): for
@@ -20,28 +22,8 @@ use core::arch::asm;
 /// **Cost:** two outputs per pass over the taps, 9 instructions per tap and pair of outputs.
 #[inline]
 pub fn dot_block_q15_i32(taps: &[i16], span: &[i16], mut emit: impl FnMut(i32)) {
-    let len = taps.len();
-    if len == 0 {
-        return;
-    }
-    let mut rest = span;
-    while let Some(window) = rest.get(..len + 1) {
-        let [a0, a1] = two_outputs(taps, window);
-        emit(a0);
-        emit(a1);
-        rest = rest.get(2..).unwrap_or(&[]);
-    }
-    if let Some(window) = rest.get(..len) {
-        emit(reversed_sum(0, taps, window));
-    }
-}
-
-/// `acc + Σ_k taps[k]·xs[len − 1 − k]`, wrapping: the plain loop for remainders.
-#[inline(always)]
-fn reversed_sum(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
-    taps.iter().zip(xs.iter().rev()).fold(acc, |acc, (&h, &x)| {
-        acc.wrapping_add(i32::from(h) * i32::from(x))
-    })
+    let rest = groups_of::<_, _, 2>(taps.len(), span, |w| two_outputs(taps, w), &mut emit);
+    singles(taps.len(), rest, |w| reversed_sum_i32(0, taps, w), emit);
 }
 
 /// Outputs 0 and 1 over `window` (L + 1 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].
@@ -181,10 +163,5 @@ fn two_outputs(taps: &[i16], window: &[i16]) -> [i32; 2] {
     } else {
         0
     };
-    let [a0, a1] = sums;
-    let taps_left = taps.get(done..).unwrap_or(&[]);
-    let rest = |acc: i32, m: usize| {
-        reversed_sum(acc, taps_left, window.get(..len + m - done).unwrap_or(&[]))
-    };
-    [rest(a0, 0), rest(a1, 1)]
+    add_remaining(sums, taps, window, done, reversed_sum_i32)
 }
