@@ -149,14 +149,11 @@ fn codes(seed: u32) -> impl FnMut() -> u32 {
     }
 }
 
-/// Every assembly kernel of `tapline::kernel::arm` against its portable twin.
-#[cfg(dsp_kernels)]
-fn dsp_twin_mismatches() -> usize {
-    use tapline::kernel::{arm, dot_block, dot_reversed};
-    use tapline::num::DefaultAcc;
-    type Proven = Acc32<Smoother>;
+/// Random Q15 codes for the twin checks, one in four at full scale (either end).
+#[cfg(any(dsp_kernels, v6m_kernels))]
+fn q15_codes() -> impl FnMut() -> i16 {
     let mut r = codes(0x2545_f491);
-    let mut q15 = move || match r() % 4 {
+    move || match r() % 4 {
         0 => {
             if r() % 2 == 0 {
                 i16::MIN
@@ -165,7 +162,16 @@ fn dsp_twin_mismatches() -> usize {
             }
         }
         _ => (r() >> 16) as i16,
-    };
+    }
+}
+
+/// Every assembly kernel of `tapline::kernel::arm` against its portable twin.
+#[cfg(dsp_kernels)]
+fn dsp_twin_mismatches() -> usize {
+    use tapline::kernel::{arm, dot_block, dot_reversed};
+    use tapline::num::DefaultAcc;
+    type Proven = Acc32<Smoother>;
+    let mut q15 = q15_codes();
     let mut r = codes(0x1234_5677);
     let mut q31 = move || match r() % 4 {
         0 => {
@@ -300,20 +306,9 @@ where
 #[cfg(v6m_kernels)]
 fn v6m_twin_mismatches() -> usize {
     use tapline::kernel::{arm, dot_block};
-    let mut r = codes(0x2545_f491);
-    let q15 = move || match r() % 4 {
-        0 => {
-            if r() % 2 == 0 {
-                i16::MIN
-            } else {
-                i16::MAX
-            }
-        }
-        _ => (r() >> 16) as i16,
-    };
     twin_mismatches(
         "q15, proven i32 sums (Armv6-M MULS)",
-        q15,
+        q15_codes(),
         i16::MIN,
         |h, x, fast, twin| {
             arm::dot_block_q15_i32(h, x, collect(fast));
