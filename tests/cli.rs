@@ -669,25 +669,37 @@ mod committed {
 #[test]
 fn committed_example_taps_are_current() {
     assert_eq!(committed::SILO_SCALE_TAPS.to_vec(), library_q15());
-    let dir = scratch();
-    let out = tool(
-        &[
-            "emit",
-            "--spec",
-            &repo().join(SILO_SPEC).display().to_string(),
-            "--out",
-            "again.rs",
-            "--name",
-            "SILO_SCALE_TAPS",
-        ],
-        dir.path(),
+    // The committed file is a copy of what the emit command in examples/tool/README.md writes,
+    // byte for byte (doc comment, figures and recorded command included): run that command, with
+    // the same arguments from the same place, and compare.
+    let readme = fs::read_to_string(repo().join("examples/tool/README.md")).unwrap_or_default();
+    let line = readme
+        .lines()
+        .find(|l| l.starts_with("cargo run --features cli -- emit "))
+        .unwrap_or_else(|| panic!("examples/tool/README.md has no emit command"));
+    let args: Vec<&str> = line["cargo run --features cli -- ".len()..]
+        .split_whitespace()
+        .collect();
+    let out_at = args.iter().position(|a| *a == "--out").map(|i| args[i + 1]);
+    let written = repo().join(out_at.unwrap_or_else(|| panic!("the emit command has no --out")));
+    assert!(
+        written.starts_with(repo().join("target")),
+        "{line}: writes outside target/"
     );
+    if let Some(parent) = written.parent() {
+        fs::create_dir_all(parent).unwrap_or_else(|e| panic!("{}: {e}", parent.display()));
+    }
+    let out = tool(&args, &repo());
     assert_eq!(status(&out), 0, "{}", stderr(&out));
-    let again = fs::read_to_string(dir.path().join("again.rs")).unwrap_or_default();
+    let again = fs::read_to_string(&written).unwrap_or_default();
     let committed =
         fs::read_to_string(repo().join("examples/tool/silo_scale_taps.rs")).unwrap_or_default();
-    let array = |s: &str| s.split_once("pub static").map(|(_, a)| a.to_string());
-    assert_eq!(array(&again), array(&committed));
+    assert!(
+        again == committed,
+        "examples/tool/silo_scale_taps.rs is not what `{line}` writes today; run it and copy \
+         {} over the committed file\n--- committed\n{committed}\n--- written\n{again}",
+        written.display()
+    );
 }
 
 #[test]

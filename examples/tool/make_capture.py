@@ -5,9 +5,10 @@ reads about 800 codes, grain pours in from 0.8 s (a ramp to 1400 codes over 0.4 
 hum of 300 codes rides on top, plus uniform noise of +-20 codes from a fixed-seed generator, so
 the file is the same on every machine. Standard library only.
 
-    python3 examples/tool/make_capture.py
+    python3 examples/tool/make_capture.py [--out DIR]
 """
 import math
+import sys
 from pathlib import Path
 
 RATE_HZ = 1000
@@ -24,7 +25,9 @@ def main() -> None:
         noise = (state / 2**31 - 0.5) * 40
         code = max(-2048, min(2047, round(weight + hum + noise)))
         rows.append(f"{t:.3f},{code}")
-    out = Path(__file__).with_name("silo_capture.csv")
+    # --out DIR: write elsewhere (tests/vectors/compare.py regenerates into a temporary folder).
+    out_dir = Path(sys.argv[sys.argv.index("--out") + 1]) if "--out" in sys.argv else Path(__file__).parent
+    out = out_dir / "silo_capture.csv"
     out.write_text("# invented capture: see make_capture.py\n" + "\n".join(rows) + "\n")
 
 if __name__ == "__main__":

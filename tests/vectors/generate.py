@@ -21,7 +21,7 @@ Also: which Q31 kernels keep every exact sum inside i64 for every full-range inp
 kernel that does not (tapline must refuse it), and a 200-sample streaming case (Q15 and f64)
 whose reference is numpy.convolve(x, h)[:200], the FIR output from zero initial history.
 
-Usage: python3 tests/vectors/generate.py [--allow-other-numpy]
+Usage: python3 tests/vectors/generate.py [--allow-other-numpy] [--out DIR]
 """
 
 import os
@@ -254,7 +254,9 @@ def op_rs(op):
 def main():
     version = check_numpy_version()
     here = os.path.dirname(os.path.abspath(__file__))
-    out_path = os.path.join(here, "numpy_convolve.rs")
+    # --out DIR: write elsewhere (tests/vectors/compare.py regenerates into a temporary folder).
+    out_dir = sys.argv[sys.argv.index("--out") + 1] if "--out" in sys.argv else here
+    out_path = os.path.join(out_dir, "numpy_convolve.rs")
 
     o = []
     w = o.append
