@@ -52,6 +52,12 @@ impl OutputStep {
         self.saturations = count_event(self.saturations, event);
     }
 
+    /// Adds `events` saturations at once: block paths count a block's events in a local.
+    #[inline(always)]
+    pub(crate) fn count_events(&mut self, events: u32) {
+        self.saturations = count_events(self.saturations, events);
+    }
+
     pub(crate) const fn rounding(&self) -> Rounding {
         self.rounding
     }
