@@ -16,7 +16,7 @@
 //! rounding step, saturation (counted in the returned value), float in ascending kernel index.
 
 use crate::Error;
-use crate::kernel::{dot, dot_reversed};
+use crate::kernel::dot;
 use crate::num::{DefaultAcc, MulAcc, Rounding, Sample};
 
 /// Which part of the full result to produce.
@@ -138,10 +138,8 @@ pub fn convolve<S: MulAcc<T>, T: Sample>(
         let k_hi = n.min(k - 1);
         let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
         let xs = signal.get(n - k_hi..=n - k_lo).unwrap_or(&[]);
-        let (v, sat) = S::finish(
-            dot_reversed::<S, T, DefaultAcc>(S::ACC_ZERO, taps, xs),
-            rounding,
-        );
+        // The dispatched sum (`kernel::Kernels`): the target's kernel where there is one.
+        let (v, sat) = S::finish(S::dot_reversed(S::ACC_ZERO, taps, xs), rounding);
         *y = v;
         saturated += usize::from(sat);
     }

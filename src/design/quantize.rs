@@ -2,7 +2,7 @@
 
 use super::real::{abs_f64, round_f64};
 use crate::Error;
-use crate::filter::Symmetry;
+use crate::headroom::Symmetry;
 use crate::num::{FixedPoint, Sample};
 
 /// What [`quantize`] did: the DC gain it kept, the largest tap error, and whether symmetry and

@@ -1,8 +1,9 @@
 //! The linear-phase FIR, folded: symmetric or antisymmetric taps share one multiply per pair of
 //! samples, y\[n\] = Σ_{k<⌊N/2⌋} h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) (+ the centre term).
 
+use super::GroupDelay;
 use super::shared::{OutputStep, history_dot_folded, map_block, output_controls};
-use super::{GroupDelay, Symmetry};
+use crate::headroom::Symmetry;
 use crate::kernel::{Fold, FoldMulAcc};
 use crate::num::{DefaultAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};

@@ -14,7 +14,9 @@ mod multichannel;
 mod shared;
 
 pub use fir::Fir;
-pub use group_delay::{GroupDelay, Symmetry};
+pub use group_delay::GroupDelay;
+// Symmetry is tap-set analysis (headroom), kept at this path too, where filters use it.
+pub use crate::headroom::Symmetry;
 
 pub use cic::{
     CicDecimator, CicRegister, cic_compensator, cic_growth_bits, cic_magnitude, cic_register_bits,

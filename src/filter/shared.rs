@@ -39,6 +39,20 @@ impl OutputStep {
         y
     }
 
+    /// [`finish`](Self::finish) for a sample whose admission (`MulAcc::admit`) was held back
+    /// until its output: both events update the counter once, after the sum, so it stays in a
+    /// register across the kernel call (per-sample cost, `examples/qemu/COSTS.md`).
+    #[inline(always)]
+    pub(crate) fn finish_admitted<S: MulAcc<T, W>, T: Sample, W>(
+        &mut self,
+        acc: S::Acc,
+        clamped: bool,
+    ) -> S {
+        let (y, saturated) = S::finish(acc, self.rounding);
+        self.saturations = count_event(count_event(self.saturations, saturated), clamped);
+        y
+    }
+
     /// A raw fixed-point result clamped to `S`'s range; a clamp is counted.
     #[inline(always)]
     pub(crate) fn saturate<S: FixedPoint>(&mut self, raw: i64) -> S {
@@ -50,6 +64,12 @@ impl OutputStep {
     #[inline(always)]
     fn count(&mut self, event: bool) {
         self.saturations = count_event(self.saturations, event);
+    }
+
+    /// Adds `events` saturations at once: block paths count a block's events in a local.
+    #[inline(always)]
+    pub(crate) fn count_events(&mut self, events: u32) {
+        self.saturations = count_events(self.saturations, events);
     }
 
     pub(crate) const fn rounding(&self) -> Rounding {

@@ -9,15 +9,19 @@
 //! * [`ErrorBound`] and [`measure_deviation`] — the computed and the measured distance from
 //!   float64, in output LSBs, with saturation counted apart.
 //! * [`AccTrace`] — the accumulator extremes a real (replayed) signal used.
+//! * [`Symmetry`] — whether a tap set is symmetric or antisymmetric (linear phase).
 
 mod analysis;
 mod deviation;
 mod proof;
 mod range;
+mod symmetry;
 mod trace;
 
 pub use analysis::{AccWidth, Extreme, Headroom};
 pub use deviation::{Deviation, ErrorBound, measure_deviation};
+pub(crate) use proof::proof_holds;
 pub use proof::{Acc32, ProvenTaps};
 pub use range::{Align, InputRange};
+pub use symmetry::Symmetry;
 pub use trace::AccTrace;

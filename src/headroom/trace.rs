@@ -1,11 +1,9 @@
 //! Run-time evidence: the largest accumulator values a real input actually produced.
 
-use crate::Fir;
-use crate::num::{MulAcc, Sample};
-
 /// The extremes of the accumulator seen while filtering, so a replayed recording shows how
 /// much headroom the real signal left (compare with [`Headroom`](super::Headroom), which gives
-/// what the worst possible signal would use).
+/// what the worst possible signal would use). [`Fir::push_traced`](crate::Fir::push_traced)
+/// records into it.
 ///
 /// ```
 /// use tapline::{Fir, headroom::AccTrace};
@@ -78,19 +76,5 @@ impl AccTrace {
     #[must_use]
     pub const fn spare_bits(&self, width: u32) -> i32 {
         width as i32 - self.bits_used() as i32
-    }
-}
-
-impl<S, const N: usize, T, W> Fir<'_, S, N, T, W>
-where
-    S: MulAcc<T, W>,
-    S::Acc: Into<i128>,
-    T: Sample,
-{
-    /// [`push`](Fir::push), also recording the accumulator in `trace`. Same output, same
-    /// counters. For fixed-point accumulators (`i32`, `i64`, `i128`).
-    #[inline]
-    pub fn push_traced(&mut self, x: S, trace: &mut AccTrace) -> S {
-        self.push_with(x, |acc| trace.record(acc.into()))
     }
 }

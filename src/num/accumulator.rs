@@ -1,6 +1,7 @@
 //! Accumulator widths: the markers that select among a sample type's `MulAcc` impls.
 
 use super::sealed::Sealed;
+use core::marker::PhantomData;
 
 /// The sample type's own accumulator: `i64` for 16- and 32-bit fixed point, the float type's
 /// own precision (or `f64` for `f32` samples with `f64` taps). Exact for fixed point whenever
@@ -25,12 +26,36 @@ pub struct DefaultAcc;
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub struct Acc128;
 
+/// The 32-bit accumulator for 16-bit samples and Q15 taps, safe because `P`'s taps and range
+/// are proven at compile time never to overflow it: on Cortex-M0/M3/M4 it replaces 64-bit
+/// multiply-accumulates by 32-bit ones. Also reachable as `tapline::headroom::Acc32`.
+///
+/// This is only the name of the width. Its arithmetic exists for a `P` that implements the
+/// proof trait `ProvenTaps` of the headroom module, and only `Fir::proven` builds filters with
+/// it (the doctest there shows the whole use). Sums wrap modulo 2^32, which the proof makes
+/// exact; inputs are clamped to the proven range.
+pub struct Acc32<P>(PhantomData<P>);
+
+// By hand: derives would demand the same traits of `P`, which is only a name for a proof.
+impl<P> Clone for Acc32<P> {
+    fn clone(&self) -> Self {
+        *self
+    }
+}
+impl<P> Copy for Acc32<P> {}
+impl<P> core::fmt::Debug for Acc32<P> {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        f.write_str("Acc32")
+    }
+}
+
 /// Accumulator widths whose safety a constructor can check at run time from the taps alone
-/// ([`DefaultAcc`], [`Acc128`]). The proven 32-bit accumulator is not one of them: it is built
-/// only through its compile-time proof ([`Fir::proven`](crate::Fir::proven)).
+/// ([`DefaultAcc`], [`Acc128`]). The proven 32-bit accumulator [`Acc32`] is not one of them: it
+/// is built only through its compile-time proof (`Fir::proven`).
 pub trait RuntimeChecked: Sealed {}
 
 impl Sealed for DefaultAcc {}
 impl Sealed for Acc128 {}
+impl<P> Sealed for Acc32<P> {}
 impl RuntimeChecked for DefaultAcc {}
 impl RuntimeChecked for Acc128 {}

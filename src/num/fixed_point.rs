@@ -179,7 +179,7 @@ fn product<T: FixedPoint, S: FixedPoint>(tap: T, x: S) -> i64 {
 }
 
 macro_rules! fixed_mul_acc {
-    ($( [$($gen:tt)*] $s:ty => $t:ty; { $($fast:tt)* } )*) => {$(
+    ($( [$($gen:tt)*] $s:ty => $t:ty; )*) => {$(
         impl<$($gen)*> MulAcc<$t> for $s {
             type Acc = i64;
             const ACC_ZERO: i64 = 0;
@@ -199,43 +199,15 @@ macro_rules! fixed_mul_acc {
                 let (lo, hi) = sum_range(taps.iter().map(|t| t.raw()), Self::RAW_MIN, Self::RAW_MAX);
                 lo >= i128::from(i64::MIN) && hi <= i128::from(i64::MAX)
             }
-
-            $($fast)*
         }
     )*};
 }
 
-// Q15 and Q31 use the assembly kernels on Armv7E-M; they are bit-identical to the portable
-// ones (`kernel::arm` says how that is tested).
 fixed_mul_acc! {
-    [] i16 => i16; {
-        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
-        #[inline(always)]
-        fn dot_block(taps: &[i16], span: &[i16], emit: impl FnMut(i64)) {
-            crate::kernel::arm::dot_block_q15_i64(taps, span, emit);
-        }
-
-        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
-        #[inline(always)]
-        fn dot_reversed(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
-            crate::kernel::arm::dot_reversed_q15_i64(acc, taps, xs)
-        }
-    }
-    [] i32 => i32; {
-        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
-        #[inline(always)]
-        fn dot_block(taps: &[i32], span: &[i32], emit: impl FnMut(i64)) {
-            crate::kernel::arm::dot_block_q31_i64(taps, span, emit);
-        }
-
-        #[cfg(all(target_arch = "arm", tapline_arm_dsp))]
-        #[inline(always)]
-        fn dot_reversed(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
-            crate::kernel::arm::dot_reversed_q31_i64(acc, taps, xs)
-        }
-    }
-    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>; {}
-    [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>; {}
+    [] i16 => i16;
+    [] i32 => i32;
+    [Fs: LeEqU16, Ft: LeEqU16] FixedI16<Fs> => FixedI16<Ft>;
+    [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>;
 }
 
 macro_rules! wide_mul_acc {

@@ -28,18 +28,6 @@ impl Sample for f64 {
 impl MulAcc<f32> for f32 {
     type Acc = f32;
     const ACC_ZERO: f32 = 0.0;
-    // The FPU kernel, bit-identical to the portable one (`kernel::arm` says how that is
-    // tested).
-    #[cfg(all(target_arch = "arm", tapline_arm_fpu))]
-    #[inline(always)]
-    fn dot_block(taps: &[f32], span: &[f32], emit: impl FnMut(f32)) {
-        crate::kernel::arm::dot_block_f32(taps, span, emit);
-    }
-    #[cfg(all(target_arch = "arm", tapline_arm_fpu))]
-    #[inline(always)]
-    fn dot_reversed(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
-        crate::kernel::arm::dot_reversed_f32(acc, taps, xs)
-    }
     #[inline(always)]
     fn mul_acc(acc: f32, tap: f32, x: f32) -> f32 {
         acc + tap * x

@@ -11,7 +11,7 @@
 //! |---|---|---|---|---|
 //! | `i16` (Q15) | `i16` (Q15) | [`DefaultAcc`] | `i64`, exact | `>> 15`, [`Rounding`], saturate to `i16` |
 //! | `FixedI16<Fs>` | `FixedI16<Ft>` | [`DefaultAcc`] | `i64`, exact | `>> Ft`, [`Rounding`], saturate |
-//! | `i16`, `FixedI16<Fs>` | `i16` (Q15) | [`Acc32<P>`](crate::headroom::Acc32) | `i32`, exact by a compile-time proof | as above |
+//! | `i16`, `FixedI16<Fs>` | `i16` (Q15) | [`Acc32<P>`](Acc32) | `i32`, exact by a compile-time proof | as above |
 //! | `i32` (Q31) | `i32` (Q31) | [`DefaultAcc`] | `i64`, exact while Σ\|h\| < 2 | `>> 31`, [`Rounding`], saturate to `i32` |
 //! | `FixedI32<Fs>` | `FixedI32<Ft>` | [`DefaultAcc`] | `i64`, exact while in range | `>> Ft`, [`Rounding`], saturate |
 //! | `i32`, `FixedI32<Fs>` | as above | [`Acc128`] | `i128`, exact for any taps | as above |
@@ -22,13 +22,21 @@
 //! "Exact" is guaranteed, not hoped for: [`MulAcc::accumulator_fits`] decides from the taps
 //! whether any input in the sample type's full range could overflow the accumulator, and every
 //! constructor in this crate refuses such taps.
+//!
+//! **Layer rule:** this module is arithmetic only and imports nothing of this crate but itself
+//! (the `fixed` crate is its one dependency). It chooses no kernel: [`Kernels`] only *names* the
+//! two slice sums every filter runs, with their contracts; which code computes them on which
+//! target is decided once per sample/tap/accumulator combination in the kernel layer
+//! (`kernel/select.rs`), the only place that knows about target kernels. Because `Kernels` is a
+//! supertrait of [`MulAcc`], every `S: MulAcc<T, W>` bound can call them, and a new arithmetic
+//! does not compile until the kernel layer has chosen its kernels.
 
 mod accumulator;
 pub(crate) mod fixed_point;
 mod float;
 mod rounding;
 
-pub use accumulator::{Acc128, DefaultAcc, RuntimeChecked};
+pub use accumulator::{Acc32, Acc128, DefaultAcc, RuntimeChecked};
 pub use fixed_point::FixedPoint;
 pub use rounding::Rounding;
 
@@ -62,11 +70,12 @@ pub trait Sample: Copy + PartialEq + core::fmt::Debug + sealed::Sealed {
 ///
 /// The methods are the whole arithmetic of a filter; kernels only call [`mul_acc`] in a loop
 /// and [`finish`] once per output. See the [module table](self) for each implementation's
-/// accumulator and output step.
+/// accumulator and output step. The slice sums built from them come with the supertrait
+/// [`Kernels`], so any `S: MulAcc<T, W>` can run them.
 ///
 /// [`mul_acc`]: MulAcc::mul_acc
 /// [`finish`]: MulAcc::finish
-pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
+pub trait MulAcc<T: Sample, W = DefaultAcc>: Kernels<T, W> {
     /// The accumulator: wide enough to hold the exact sum for any tap set that passes
     /// [`accumulator_fits`](MulAcc::accumulator_fits).
     type Acc: Copy + core::fmt::Debug;
@@ -124,7 +133,7 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
 
     /// The input as the filter admits it into its history, and whether it had to be changed.
     ///
-    /// Every accumulator but [`Acc32`](crate::headroom::Acc32) admits every value unchanged.
+    /// Every accumulator but [`Acc32`] admits every value unchanged.
     /// `Acc32<P>` clamps the input to the range its proof `P` was made for, so that the proof
     /// holds for any value the firmware passes; a clamp counts as a saturation.
     ///
@@ -136,43 +145,60 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Sample {
     fn admit(x: Self) -> (Self, bool) {
         (x, false)
     }
+}
 
-    /// The block sum [`Fir`](crate::Fir) runs on a staged block: for every `i` with
-    /// `i + taps.len() ≤ span.len()`, in ascending `i`, `emit(Σ_k taps[k]·span[i + L − 1 − k])`.
-    ///
-    /// The provided method is the portable [`dot_block`](crate::kernel::dot_block). An
-    /// implementation may use a target kernel instead only if it is bit-identical to it: Q15
-    /// samples with the proven 32-bit accumulator use the dual multiply-accumulate kernel in
-    /// `kernel::arm` on Armv7E-M cores.
+/// The two slice sums every filter runs, named here with their exact contracts and computed by
+/// the kernel layer, which holds one impl per sample/tap/accumulator combination and chooses
+/// there, per target, between the portable loops and the assembly kernels (each bit-identical
+/// to its portable twin). A supertrait of [`MulAcc`]: every `S: MulAcc<T, W>` bound reaches
+/// them, so generic code written against `MulAcc` calls them unchanged.
+///
+/// **Numerics:** exactly the sums [`MulAcc::mul_acc`] builds term by term from
+/// [`MulAcc::ACC_ZERO`] (or the `acc` given), in ascending tap index: fixed point is exact for
+/// taps that pass [`MulAcc::accumulator_fits`]; floats round per operation, in that order, on
+/// every target. Nothing here rounds to the output or saturates ([`MulAcc::finish`] does).
+///
+/// Name the trait to call a sum directly; `W` defaults to [`DefaultAcc`] as in `MulAcc`:
+///
+/// ```
+/// use tapline::num::Kernels;
+/// // h = [1, 2, 3] against the history 10, 20, 30 (newest last): 1·30 + 2·20 + 3·10.
+/// assert_eq!(<i16 as Kernels<i16>>::dot_reversed(0, &[1, 2, 3], &[10, 20, 30]), 100);
+/// ```
+pub trait Kernels<T: Sample, W = DefaultAcc>: Sample {
+    /// The block sum a filter runs on a staged block: for every `i` with
+    /// `i + taps.len() ≤ span.len()`, in ascending `i`, `emit(Σ_k taps[k]·span[i + L − 1 − k])`
+    /// (L = `taps.len()`), each output summed from `ACC_ZERO`. No outputs when `taps` is empty
+    /// or `span` is shorter than `taps`.
     ///
     /// ```
-    /// use tapline::MulAcc;
+    /// use tapline::num::Kernels;
     /// let mut out = [0i64; 2];
     /// let mut slots = out.iter_mut();
-    /// <i16 as MulAcc<i16>>::dot_block(&[1, 1], &[1, 2, 3], |acc| {
+    /// <i16 as Kernels<i16>>::dot_block(&[1, 1], &[1, 2, 3], |acc| {
     ///     if let Some(slot) = slots.next() { *slot = acc; }
     /// });
     /// assert_eq!(out, [3, 5]);
     /// ```
-    #[inline(always)]
-    fn dot_block(taps: &[T], span: &[Self], emit: impl FnMut(Self::Acc)) {
-        crate::kernel::dot_block::<Self, T, W>(taps, span, emit);
-    }
+    fn dot_block(taps: &[T], span: &[Self], emit: impl FnMut(<Self as MulAcc<T, W>>::Acc))
+    where
+        Self: MulAcc<T, W>;
 
-    /// The single-output sum the filters run per sample: `acc + Σ taps[k]·xs[len − 1 − k]`
-    /// over `k < len = min(taps.len(), xs.len())` (the contract of
-    /// [`dot_reversed`](crate::kernel::dot_reversed)).
-    ///
-    /// The provided method is the portable kernel; Q15, Q31 and `f32` use the assembly kernels
-    /// of `kernel::arm` on Armv7E-M, which are bit-identical to it.
+    /// The single-output sum a filter runs per sample: `acc + Σ taps[k]·xs[len − 1 − k]` over
+    /// `k < len = min(taps.len(), xs.len())` (taps forward against `xs` read backward from its
+    /// last element: with `xs` a history ordered oldest→newest, the convolution sum).
     ///
     /// ```
-    /// use tapline::MulAcc;
-    /// // h = [1, 2, 3] against the history 10, 20, 30 (newest last): 1·30 + 2·20 + 3·10.
-    /// assert_eq!(<i16 as MulAcc<i16>>::dot_reversed(0, &[1, 2, 3], &[10, 20, 30]), 100);
+    /// use tapline::num::{Acc128, Kernels};
+    /// // Q31 full scale: (−1)·(−1) twice is 2.0 in Q62, beyond i64 and exact in i128.
+    /// let acc = <i32 as Kernels<i32, Acc128>>::dot_reversed(0, &[i32::MIN; 2], &[i32::MIN; 2]);
+    /// assert_eq!(acc, 1 << 63);
     /// ```
-    #[inline(always)]
-    fn dot_reversed(acc: Self::Acc, taps: &[T], xs: &[Self]) -> Self::Acc {
-        crate::kernel::dot_reversed::<Self, T, W>(acc, taps, xs)
-    }
+    fn dot_reversed(
+        acc: <Self as MulAcc<T, W>>::Acc,
+        taps: &[T],
+        xs: &[Self],
+    ) -> <Self as MulAcc<T, W>>::Acc
+    where
+        Self: MulAcc<T, W>;
 }

@@ -31,7 +31,7 @@ fn portable_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
 /// (L = `taps.len()`), the products exact (Q30) and the sum wrapping modulo 2^32.
 ///
 /// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) with the proven 32-bit
-/// accumulator ([`Acc32`](crate::headroom::Acc32)), whose sums wrap the same way; with taps
+/// accumulator ([`Acc32`](crate::num::Acc32)), whose sums wrap the same way; with taps
 /// whose headroom proof holds, nothing wraps and every sum is exact. The order of the terms
 /// differs (two at a time) but integer sums modulo 2^32 do not depend on order.
 ///
@@ -253,7 +253,7 @@ fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X]) {
 /// loop pass as 8 `SMLADX`, each after one tap-pair and one sample-pair load.
 ///
 /// **Numerics:** bit-identical to [`dot_reversed`](crate::kernel::dot_reversed) with
-/// [`Acc32`](crate::headroom::Acc32) (integer sums modulo 2^32 do not depend on order).
+/// [`Acc32`](crate::num::Acc32) (integer sums modulo 2^32 do not depend on order).
 #[inline]
 #[must_use]
 pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {

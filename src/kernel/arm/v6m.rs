@@ -18,7 +18,7 @@ use core::arch::asm;
 /// `emit(Σ_k taps[k]·span[i + L − 1 − k])` (L = `taps.len()`), the sum wrapping modulo 2^32.
 ///
 /// **Numerics:** bit-identical to [`dot_block`](crate::kernel::dot_block) with the proven
-/// 32-bit accumulator ([`Acc32`](crate::headroom::Acc32)), whose sums wrap the same way.
+/// 32-bit accumulator ([`Acc32`](crate::num::Acc32)), whose sums wrap the same way.
 /// **Cost:** two outputs per pass over the taps, 9 instructions per tap and pair of outputs.
 #[inline]
 pub fn dot_block_q15_i32(taps: &[i16], span: &[i16], mut emit: impl FnMut(i32)) {
