@@ -125,6 +125,25 @@ pub enum Error {
         /// Position of the first such tap.
         index: usize,
     },
+    /// A filter was given no taps; it needs at least one.
+    NoTaps,
+    /// More taps than the filter's capacity (its history length, the const `N`).
+    TooManyTaps {
+        /// The most taps the filter holds.
+        capacity: usize,
+        /// The number of taps passed.
+        found: usize,
+    },
+    /// Q15 taps checked against an input range at run time can take the exact sum outside a
+    /// 32-bit accumulator: `above` is how far the largest reachable sum lies beyond `i32::MAX`,
+    /// `below` how far the smallest lies beneath `i32::MIN` (each 0 when that bound holds, and
+    /// stopping at `u64::MAX`), in accumulator units (Q30 for Q15 taps and samples).
+    Acc32Overflow {
+        /// Excess of the largest reachable sum over `i32::MAX`, or 0.
+        above: u64,
+        /// Shortfall of the smallest reachable sum under `i32::MIN`, or 0.
+        below: u64,
+    },
 }
 
 impl fmt::Display for Error {
@@ -230,6 +249,18 @@ impl fmt::Display for Error {
             Error::TapOutOfRange { index } => write!(
                 f,
                 "tap {index} is not finite or lies outside the fixed-point format's range"
+            ),
+            Error::NoTaps => f.write_str("a filter needs at least one tap; none were given"),
+            Error::TooManyTaps { capacity, found } => write!(
+                f,
+                "{found} taps given, but the filter holds at most {capacity}"
+            ),
+            Error::Acc32Overflow { above, below } => write!(
+                f,
+                "these taps can take the sum outside a 32-bit accumulator for inputs in the \
+                 checked range: the largest sum exceeds i32::MAX by {above} and the smallest \
+                 falls below i32::MIN by {below}; narrow the input range, reduce the sum of \
+                 |taps|, or use the default 64-bit accumulator"
             ),
         }
     }

@@ -145,6 +145,16 @@ impl<T: Copy, const N: usize> Ring<T, N> {
         self.next = 0;
     }
 
+    /// Replaces every value `v` of the history by `f(v)` (slot by slot, not in time order),
+    /// keeping the write position: `f` runs once per value, and the mirrored copy follows.
+    pub(crate) fn update_each(&mut self, mut f: impl FnMut(T) -> T) {
+        let [primary, mirror] = &mut self.slots;
+        for (a, b) in primary.iter_mut().zip(mirror.iter_mut()) {
+            *a = f(*a);
+            *b = *a;
+        }
+    }
+
     /// Lays `incoming` (at most `N − next` values, between 1 and N; the rest is left unread) out right after the history without committing it, and returns how many values
     /// `k` it took. [`staged_span`](Ring::staged_span) then reads them with the history before
     /// them.

@@ -12,8 +12,10 @@ mod linear_phase;
 mod moving_average;
 mod multichannel;
 mod shared;
+mod taps;
 
-pub use fir::Fir;
+pub use fir::{Fir, FirUpTo};
+pub use taps::TapTable;
 pub use group_delay::GroupDelay;
 // Symmetry is tap-set analysis (headroom), kept at this path too, where filters use it.
 pub use crate::headroom::Symmetry;

@@ -6,6 +6,8 @@
 //!   the worst-case input that reaches each bound.
 //! * [`ProvenTaps`] + [`Fir::proven`](crate::Fir::proven) — the 32-bit Q15 accumulator
 //!   ([`Acc32`]), reachable only through a proof the compiler checks.
+//! * [`CheckedTaps`] — the same 32-bit accumulator ([`Acc32Checked`]) for taps known only at
+//!   run time, reachable only through a check of the taps against an input range.
 //! * [`ErrorBound`] and [`measure_deviation`] — the computed and the measured distance from
 //!   float64, in output LSBs, with saturation counted apart.
 //! * [`AccTrace`] — the accumulator extremes a real (replayed) signal used.
@@ -21,7 +23,8 @@ mod trace;
 pub use analysis::{AccWidth, Extreme, Headroom};
 pub use deviation::{Deviation, ErrorBound, measure_deviation};
 pub(crate) use proof::proof_holds;
-pub use proof::{Acc32, ProvenTaps};
+pub use crate::num::Acc32Checked;
+pub use proof::{Acc32, CheckedTaps, ProvenTaps};
 pub use range::{Align, InputRange};
 pub use symmetry::Symmetry;
 pub use trace::AccTrace;

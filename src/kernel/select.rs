@@ -15,7 +15,7 @@
 #[cfg(all(target_arch = "arm", any(tapline_arm_dsp, tapline_armv6m)))]
 use super::arm;
 use super::portable;
-use crate::num::{Acc32, Acc128, DefaultAcc, Kernels, MulAcc};
+use crate::num::{Acc32, Acc32Checked, Acc128, DefaultAcc, Kernels, MulAcc};
 use fixed::types::extra::{LeEqU16, LeEqU32};
 use fixed::{FixedI16, FixedI32};
 
@@ -52,6 +52,7 @@ portable_kernels! {
     [] i32 => i32, Acc128;
     [Fs: LeEqU32, Ft: LeEqU32] FixedI32<Fs> => FixedI32<Ft>, Acc128;
     [P, Fs: LeEqU16] FixedI16<Fs> => i16, Acc32<P>;
+    [Fs: LeEqU16] FixedI16<Fs> => i16, Acc32Checked;
     [] f32 => f64, DefaultAcc;
     [] f64 => f64, DefaultAcc;
 }
@@ -99,6 +100,10 @@ chosen_kernels! {
     // Q15 with the proven 32-bit sum: SMLADX on Armv7E-M, two outputs per pass with MULS on
     // Armv6-M (which has no single-output kernel: the portable sum is as fast there).
     [P] i16 => i16, Acc32<P>, i32;
+        block: dot_block_q15_i32 if (any(tapline_arm_dsp, tapline_armv6m));
+        reversed: dot_reversed_q15_i32 if (tapline_arm_dsp);
+    // The same 32-bit sum for taps checked at run time: the same kernels.
+    [] i16 => i16, Acc32Checked, i32;
         block: dot_block_q15_i32 if (any(tapline_arm_dsp, tapline_armv6m));
         reversed: dot_reversed_q15_i32 if (tapline_arm_dsp);
     // f32 on the Cortex-M4F/M7 FPU: VLDM + VMLA.F32.

@@ -36,6 +36,13 @@ pub struct Acc128;
 /// exact; inputs are clamped to the proven range.
 pub struct Acc32<P>(PhantomData<P>);
 
+impl<P> Acc32<P> {
+    /// The marker value a proven filter stores (a zero-sized name).
+    pub(crate) const fn marker() -> Self {
+        Acc32(PhantomData)
+    }
+}
+
 // By hand: derives would demand the same traits of `P`, which is only a name for a proof.
 impl<P> Clone for Acc32<P> {
     fn clone(&self) -> Self {
@@ -49,13 +56,60 @@ impl<P> core::fmt::Debug for Acc32<P> {
     }
 }
 
+/// The 32-bit accumulator for 16-bit samples and Q15 taps whose safety was checked at run time,
+/// for one input range: the value carries that range (raw codes, 0 included, within 16 bits),
+/// and a filter built with it clamps every input into it (counted as a saturation), so the check
+/// holds for any value the firmware passes. Also reachable as `tapline::headroom::Acc32Checked`.
+///
+/// Only the headroom module's run-time check (`CheckedTaps::check`) makes one: the fields are
+/// private and there is no other constructor, so a filter with this width exists only for taps
+/// that passed the check. Sums wrap modulo 2^32, which the check makes exact; rounding and
+/// saturation are those of the default `i64` path, bit for bit.
+///
+/// ```
+/// use tapline::headroom::{CheckedTaps, InputRange};
+/// let checked = CheckedTaps::check(&[16384, 16384], InputRange::codes(-2048, 2047)?)?;
+/// assert_eq!(checked.width().input(), (-2048, 2047));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Acc32Checked {
+    min: i16,
+    max: i16,
+}
+
+impl Acc32Checked {
+    /// The width for inputs clamped to `min..=max`; the caller has checked the taps for that
+    /// range (and `min ≤ 0 ≤ max`).
+    pub(crate) const fn for_checked_range(min: i16, max: i16) -> Self {
+        Acc32Checked { min, max }
+    }
+
+    /// The raw input codes the check covered, `(min, max)`, 0 included. Filters clamp inputs
+    /// into it.
+    #[must_use]
+    pub const fn input(&self) -> (i16, i16) {
+        (self.min, self.max)
+    }
+
+    /// `raw` clamped into the checked range, and whether that changed it. Branch-free on the
+    /// value: a `max`/`min` pair, never a panic (the range is never empty).
+    #[inline(always)]
+    #[must_use]
+    pub fn clamp(&self, raw: i16) -> (i16, bool) {
+        let kept = raw.max(self.min).min(self.max);
+        (kept, kept != raw)
+    }
+}
+
 /// Accumulator widths whose safety a constructor can check at run time from the taps alone
-/// ([`DefaultAcc`], [`Acc128`]). The proven 32-bit accumulator [`Acc32`] is not one of them: it
-/// is built only through its compile-time proof (`Fir::proven`).
-pub trait RuntimeChecked: Sealed {}
+/// ([`DefaultAcc`], [`Acc128`]). The proven 32-bit accumulators [`Acc32`] and [`Acc32Checked`]
+/// are not: they are built only through their proofs (`Fir::proven`, `CheckedTaps::check`).
+pub trait RuntimeChecked: Sealed + Default {}
 
 impl Sealed for DefaultAcc {}
 impl Sealed for Acc128 {}
 impl<P> Sealed for Acc32<P> {}
+impl Sealed for Acc32Checked {}
 impl RuntimeChecked for DefaultAcc {}
 impl RuntimeChecked for Acc128 {}

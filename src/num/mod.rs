@@ -36,7 +36,7 @@ pub(crate) mod fixed_point;
 mod float;
 mod rounding;
 
-pub use accumulator::{Acc32, Acc128, DefaultAcc, RuntimeChecked};
+pub use accumulator::{Acc32, Acc32Checked, Acc128, DefaultAcc, RuntimeChecked};
 pub use fixed_point::FixedPoint;
 pub use rounding::Rounding;
 
@@ -144,6 +144,26 @@ pub trait MulAcc<T: Sample, W = DefaultAcc>: Kernels<T, W> {
     #[inline(always)]
     fn admit(x: Self) -> (Self, bool) {
         (x, false)
+    }
+
+    /// [`admit`](MulAcc::admit) for a filter that holds its width's value: the same for every
+    /// width but [`Acc32Checked`], whose range is a run-time value carried by `width` (its
+    /// [`admit`](MulAcc::admit) alone knows no range and admits every value unchanged). The
+    /// filters call this one.
+    ///
+    /// ```
+    /// use tapline::MulAcc;
+    /// use tapline::headroom::{Acc32Checked, CheckedTaps, InputRange};
+    /// let checked = CheckedTaps::check(&[32767; 4], InputRange::codes(-100, 100)?)?;
+    /// let width = checked.width();
+    /// assert_eq!(<i16 as MulAcc<i16, Acc32Checked>>::admit_within(&width, i16::MIN), (-100, true));
+    /// assert_eq!(<i16 as MulAcc<i16, Acc32Checked>>::admit_within(&width, 7), (7, false));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[inline(always)]
+    fn admit_within(width: &W, x: Self) -> (Self, bool) {
+        let _ = width;
+        Self::admit(x)
     }
 }
 
