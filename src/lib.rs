@@ -82,7 +82,7 @@ pub mod ring;
 
 pub use convolve::{Span, convolve, correlate};
 pub use error::Error;
-pub use filter::{Fir, GroupDelay};
+pub use filter::{DecimatorUpTo, Fir, FirUpTo, GroupDelay, MultiChannelFirUpTo};
 
 pub use filter::{
     CicDecimator, Decimator, HalfBandDecimator, Interpolator, LinearPhaseFir, MovingAverage,

@@ -5,7 +5,9 @@ use super::GroupDelay;
 use super::shared::{
     OutputStep, Phase, decimate_block, decimate_in_place, history_dot, output_controls,
 };
-use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use super::taps::TapTable;
+use crate::headroom::CheckedTaps;
+use crate::num::{Acc32Checked, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -39,6 +41,31 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
         S: MulAcc<T, W>,
     {
         let x = self.output.admit::<S, T, W>(x);
+        self.advance::<T, W>(x, sum)
+    }
+
+    /// [`push`](Self::push) for a structure that holds its width's value
+    /// ([`MulAcc::admit_within`]).
+    #[inline(always)]
+    pub(crate) fn push_within<T: Sample, W>(
+        &mut self,
+        width: &W,
+        x: S,
+        sum: impl FnOnce(&Ring<S, N>) -> S::Acc,
+    ) -> Option<S>
+    where
+        S: MulAcc<T, W>,
+    {
+        let x = self.output.admit_within::<S, T, W>(width, x);
+        self.advance::<T, W>(x, sum)
+    }
+
+    /// Pushes an admitted `x`; on the M-th input of a group, finishes `sum(history)`.
+    #[inline(always)]
+    fn advance<T: Sample, W>(&mut self, x: S, sum: impl FnOnce(&Ring<S, N>) -> S::Acc) -> Option<S>
+    where
+        S: MulAcc<T, W>,
+    {
         self.history.push(x);
         if self.phase.tick() {
             Some(self.output.finish::<S, T, W>(sum(&self.history)))
@@ -77,6 +104,9 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
 /// * **Group delay:** (N−1)/2 input samples for symmetric or antisymmetric taps, i.e.
 ///   (N−1)/(2M) output samples ([`group_delay`](Decimator::group_delay), in input samples).
 /// * **RAM:** 2·N samples (the mirrored [`Ring`](crate::Ring)), one index, one phase counter, the borrowed taps, rounding, counter.
+/// * **Taps known at run time:** [`DecimatorUpTo`] holds a slice of 1 to `N` taps (`N` the
+///   capacity) with the same code and bits as a decimator of exactly that many taps; its
+///   history stays `2·N` samples.
 ///
 /// Per-sample ([`push`](Decimator::push)) and block ([`process`](Decimator::process),
 /// [`process_in_place`](Decimator::process_in_place)) calls give the same outputs for any
@@ -116,11 +146,35 @@ pub struct Decimator<
     const M: usize,
     T: Sample = S,
     W = DefaultAcc,
+    H = &'a [T; N],
 > {
-    taps: &'a [T; N],
+    taps: H,
     core: Decimation<S, N, M>,
-    width: PhantomData<W>,
+    // A value: the run-time checked width carries its input range (zero-sized otherwise).
+    width: W,
+    borrowed: PhantomData<&'a [T]>,
 }
+
+/// A [`Decimator`] whose taps are a slice of 1 to `N` known only at run time (`N` is the
+/// capacity): what `Decimator<S, L, M>` computes for the same `L` taps, bit for bit. RAM: that
+/// of `Decimator<S, N, M>` plus one word; replacing taps ([`set_taps`](Decimator::set_taps))
+/// keeps the history and the phase.
+///
+/// ```
+/// use tapline::{Error, filter::DecimatorUpTo};
+/// // A 4-tap average chosen at start-up, in a decimator by 2 that holds up to 16 taps.
+/// let average = [8192i16; 4];
+/// let mut dec = DecimatorUpTo::<i16, 16, 2>::with_taps(&average)?;
+/// let out: Vec<i16> = [400, 800, 1200, 1600].iter().filter_map(|&x| dec.push(x)).collect();
+/// assert_eq!(out, [300, 1000]); // (0+0+400+800)/4, (400+800+1200+1600)/4
+/// assert_eq!(dec.process(&[i16::MIN; 4], &mut [0; 2])?, 2); // full scale, no saturation
+/// assert_eq!(dec.saturations(), 0);
+/// assert_eq!(DecimatorUpTo::<i16, 3, 2>::with_taps(&average).err(),
+///     Some(Error::TooManyTaps { capacity: 3, found: 4 }));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+pub type DecimatorUpTo<'a, S, const N: usize, const M: usize, T = S, W = DefaultAcc> =
+    Decimator<'a, S, N, M, T, W, &'a [T]>;
 
 impl<'a, S: MulAcc<T>, const N: usize, const M: usize, T: Sample> Decimator<'a, S, N, M, T> {
     /// A decimator with impulse response `taps` (h\[0\] multiplies the newest sample), the
@@ -156,27 +210,118 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W: RuntimeC
     /// # Ok::<(), tapline::Error>(())
     /// ```
     pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
-        if !S::accumulator_fits(taps) {
-            return Err(Error::AccumulatorOverflow);
-        }
-        Ok(Decimator {
-            taps,
-            core: Decimation::new(),
-            width: PhantomData,
-        })
+        Self::checked(taps)
     }
 }
 
-impl<S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W> Decimator<'_, S, N, M, T, W> {
+impl<'a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W: RuntimeChecked>
+    DecimatorUpTo<'a, S, N, M, T, W>
+{
+    /// A decimator of capacity `N` with the run-time tap set `taps` (1 to `N`), the
+    /// accumulator named by `W`, zero history, phase 0,
+    /// [`Rounding::HalfUp`](crate::Rounding::HalfUp).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`], and [`Error::AccumulatorOverflow`] as for
+    /// [`Fir::new`](crate::Fir::new).
+    ///
+    /// ```
+    /// use tapline::{Error, filter::DecimatorUpTo};
+    /// assert_eq!(DecimatorUpTo::<i32, 4, 2>::with_taps(&[i32::MIN; 3]).err(),
+    ///     Some(Error::AccumulatorOverflow));
+    /// assert_eq!(DecimatorUpTo::<i32, 4, 2>::with_taps(&[]).err(), Some(Error::NoTaps));
+    /// ```
+    pub fn with_taps(taps: &'a [T]) -> Result<Self, Error> {
+        Self::checked(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const M: usize, T, W, H> Decimator<'a, S, N, M, T, W, H>
+where
+    S: MulAcc<T, W>,
+    T: Sample + 'a,
+    W: RuntimeChecked,
+    H: TapTable<'a, T, N>,
+{
+    fn checked(taps: H) -> Result<Self, Error> {
+        super::fir::check_taps::<S, T, W, N>(taps)?;
+        Ok(Self::with_parts(taps, W::default()))
+    }
+
+    /// Replaces the taps, keeping the history and the phase (a run-time tap set may change its
+    /// length, 1 to `N`); from this call on the outputs are those of a decimator that had the
+    /// new taps from the start (once `N` inputs have arrived).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`] (run-time tap sets only) and
+    /// [`Error::AccumulatorOverflow`]; the old taps then stay.
+    ///
+    /// ```
+    /// use tapline::filter::DecimatorUpTo;
+    /// let mut dec = DecimatorUpTo::<i16, 4, 2>::with_taps(&[i16::MAX])?;
+    /// dec.push(1000);
+    /// dec.set_taps(&[16384, 16384])?;
+    /// assert_eq!(dec.push(i16::MIN), Some(-15884)); // (1000 − 32768) / 2
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn set_taps(&mut self, taps: H) -> Result<(), Error> {
+        super::fir::check_taps::<S, T, W, N>(taps)?;
+        self.taps = taps;
+        Ok(())
+    }
+}
+
+impl<'a, S: MulAcc<i16, Acc32Checked>, const N: usize, const M: usize>
+    DecimatorUpTo<'a, S, N, M, i16, Acc32Checked>
+{
+    /// A Q15 decimator of capacity `N` with the 32-bit accumulator, for taps that passed
+    /// [`CheckedTaps::check`]: inputs are clamped into the checked range (counted as
+    /// saturations), so the check holds for every call; outputs are those of the default `i64`
+    /// path, bit for bit, for inputs within the range.
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`] or [`Error::TooManyTaps`].
+    ///
+    /// ```
+    /// use tapline::filter::DecimatorUpTo;
+    /// use tapline::headroom::{Acc32Checked, CheckedTaps, InputRange};
+    /// let checked = CheckedTaps::check(&[32767; 4], InputRange::codes(-2048, 2047)?)?;
+    /// let mut dec = DecimatorUpTo::<i16, 8, 4, i16, Acc32Checked>::with_checked(checked)?;
+    /// let out: Vec<i16> = [i16::MIN; 4].iter().filter_map(|&x| dec.push(x)).collect();
+    /// assert_eq!(out, [-8192]); // each input clamped to -2048 (4 counted); 4 · -2048 · 32767/32768
+    /// assert_eq!(dec.saturations(), 4);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_checked(checked: CheckedTaps<'a>) -> Result<Self, Error> {
+        let taps = checked.taps();
+        TapTable::<i16, N>::within_capacity(taps)?;
+        Ok(Self::with_parts(taps, checked.width()))
+    }
+}
+
+impl<'a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample + 'a, W, H>
+    Decimator<'a, S, N, M, T, W, H>
+where
+    H: TapTable<'a, T, N>,
+{
     output_controls!(core.output);
+
+    fn with_parts(taps: H, width: W) -> Self {
+        Decimator {
+            taps,
+            core: Decimation::new(),
+            width,
+            borrowed: PhantomData,
+        }
+    }
 
     /// Takes one input; returns `Some(y)` on every M-th input (the M-th, 2M-th, … since
     /// construction or [`reset`](Decimator::reset)), `None` otherwise. Only the inputs that
     /// return `Some` cost N multiply-accumulates; the others cost one ring push.
     #[inline]
     pub fn push(&mut self, x: S) -> Option<S> {
-        let taps = self.taps;
-        self.core.push::<T, W>(x, |history| {
+        let taps = self.taps.as_slice();
+        self.core.push_within::<T, W>(&self.width, x, |history| {
             history_dot::<S, T, W, N>(S::ACC_ZERO, history, taps)
         })
     }
@@ -227,12 +372,18 @@ impl<S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W> Decimator<'_
     /// antisymmetric; `None` otherwise. Divide by M for output samples.
     #[must_use]
     pub fn group_delay(&self) -> Option<GroupDelay> {
-        GroupDelay::of(self.taps)
+        GroupDelay::of(self.taps.as_slice())
     }
 
     /// The taps.
     #[must_use]
-    pub fn taps(&self) -> &[T; N] {
+    pub fn taps(&self) -> H {
         self.taps
+    }
+
+    /// How many taps are in use: `N` for a whole table, 1 to `N` for a run-time tap set.
+    #[must_use]
+    pub fn tap_count(&self) -> usize {
+        self.taps.as_slice().len()
     }
 }

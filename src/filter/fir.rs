@@ -231,7 +231,7 @@ where
 
 /// The constructors' check: a tap count within capacity and an accumulator that cannot
 /// overflow for any input ([`MulAcc::accumulator_fits`]).
-fn check_taps<'a, S: MulAcc<T, W>, T: Sample + 'a, W, const N: usize>(
+pub(crate) fn check_taps<'a, S: MulAcc<T, W>, T: Sample + 'a, W, const N: usize>(
     taps: impl TapTable<'a, T, N>,
 ) -> Result<(), Error> {
     taps.within_capacity()?;

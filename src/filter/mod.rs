@@ -23,9 +23,9 @@ pub use crate::headroom::Symmetry;
 pub use cic::{
     CicDecimator, CicRegister, cic_compensator, cic_growth_bits, cic_magnitude, cic_register_bits,
 };
-pub use decimator::Decimator;
+pub use decimator::{Decimator, DecimatorUpTo};
 pub use half_band::HalfBandDecimator;
 pub use interpolator::Interpolator;
 pub use linear_phase::LinearPhaseFir;
 pub use moving_average::MovingAverage;
-pub use multichannel::MultiChannelFir;
+pub use multichannel::{MultiChannelFir, MultiChannelFirUpTo};

@@ -3,7 +3,9 @@
 
 use super::GroupDelay;
 use super::shared::{OutputStep, history_dot, output_controls};
-use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use super::taps::TapTable;
+use crate::headroom::CheckedTaps;
+use crate::num::{Acc32Checked, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -19,6 +21,8 @@ use core::marker::PhantomData;
 /// * **Group delay:** (N−1)/2 samples of each channel for symmetric or antisymmetric taps
 ///   ([`group_delay`](MultiChannelFir::group_delay)).
 /// * **RAM:** 2·C·N samples (C mirrored rings), C indices, the borrowed taps, rounding and one counter.
+/// * **Taps known at run time:** [`MultiChannelFirUpTo`] holds a slice of 1 to `N` taps (`N`
+///   the capacity), with the same code and bits as a filter of exactly that many taps.
 ///
 /// ```
 /// use tapline::MultiChannelFir;
@@ -49,12 +53,34 @@ pub struct MultiChannelFir<
     const C: usize,
     T: Sample = S,
     W = DefaultAcc,
+    H = &'a [T; N],
 > {
-    taps: &'a [T; N],
+    taps: H,
     channels: [Ring<S, N>; C],
     output: OutputStep,
-    width: PhantomData<W>,
+    // A value: the run-time checked width carries its input range (zero-sized otherwise).
+    width: W,
+    borrowed: PhantomData<&'a [T]>,
 }
+
+/// A [`MultiChannelFir`] whose taps are a slice of 1 to `N` known only at run time (`N` is the
+/// capacity): for every channel, what `MultiChannelFir<S, L, C>` computes for the same `L`
+/// taps, bit for bit. RAM: that of `MultiChannelFir<S, N, C>` plus one word (C histories of
+/// `2·N` samples each, whatever `L`); replacing taps
+/// ([`set_taps`](MultiChannelFir::set_taps)) keeps every channel's history.
+///
+/// ```
+/// use tapline::filter::MultiChannelFirUpTo;
+/// // Three scanned inputs; the 2-tap average was chosen by a setting at start-up.
+/// let pair = [16384i16; 2];
+/// let mut fir = MultiChannelFirUpTo::<i16, 8, 3>::with_taps(&pair)?;
+/// assert_eq!(fir.push([100, i16::MIN, 300]), [50, -16384, 150]);
+/// assert_eq!(fir.push([100, i16::MIN, 300]), [100, i16::MIN, 300]); // full scale, no saturation
+/// assert_eq!(fir.saturations(), 0);
+/// # Ok::<(), tapline::Error>(())
+/// ```
+pub type MultiChannelFirUpTo<'a, S, const N: usize, const C: usize, T = S, W = DefaultAcc> =
+    MultiChannelFir<'a, S, N, C, T, W, &'a [T]>;
 
 impl<'a, S: MulAcc<T>, const N: usize, const C: usize, T: Sample> MultiChannelFir<'a, S, N, C, T> {
     /// A C-channel filter with impulse response `taps`, the default accumulator, zero
@@ -75,23 +101,111 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W: RuntimeC
     /// # Errors
     /// [`Error::AccumulatorOverflow`] as for [`Fir::new`](crate::Fir::new).
     pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
-        const { assert!(C > 0, "a multi-channel filter needs at least one channel") };
-        if !S::accumulator_fits(taps) {
-            return Err(Error::AccumulatorOverflow);
-        }
-        Ok(MultiChannelFir {
-            taps,
-            channels: core::array::from_fn(|_| Ring::new(S::ZERO)),
-            output: OutputStep::new(),
-            width: PhantomData,
-        })
+        Self::checked(taps)
     }
 }
 
-impl<S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W>
-    MultiChannelFir<'_, S, N, C, T, W>
+impl<'a, S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W: RuntimeChecked>
+    MultiChannelFirUpTo<'a, S, N, C, T, W>
+{
+    /// A C-channel filter of capacity `N` with the run-time tap set `taps` (1 to `N`), the
+    /// accumulator named by `W`, zero histories,
+    /// [`Rounding::HalfUp`](crate::Rounding::HalfUp).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`], and [`Error::AccumulatorOverflow`] as for
+    /// [`Fir::new`](crate::Fir::new).
+    ///
+    /// ```
+    /// use tapline::{Error, filter::MultiChannelFirUpTo};
+    /// assert_eq!(MultiChannelFirUpTo::<i16, 2, 4>::with_taps(&[1, 2, 3]).err(),
+    ///     Some(Error::TooManyTaps { capacity: 2, found: 3 }));
+    /// assert_eq!(MultiChannelFirUpTo::<i16, 2, 4>::with_taps(&[]).err(), Some(Error::NoTaps));
+    /// ```
+    pub fn with_taps(taps: &'a [T]) -> Result<Self, Error> {
+        Self::checked(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const C: usize, T, W, H> MultiChannelFir<'a, S, N, C, T, W, H>
+where
+    S: MulAcc<T, W>,
+    T: Sample + 'a,
+    W: RuntimeChecked,
+    H: TapTable<'a, T, N>,
+{
+    fn checked(taps: H) -> Result<Self, Error> {
+        super::fir::check_taps::<S, T, W, N>(taps)?;
+        Ok(Self::with_parts(taps, W::default()))
+    }
+
+    /// Replaces the taps, keeping every channel's history (a run-time tap set may change its
+    /// length, 1 to `N`); from this call on the outputs are those of a filter that had the new
+    /// taps from the start (once `N` frames have arrived).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`] (run-time tap sets only) and
+    /// [`Error::AccumulatorOverflow`]; the old taps then stay.
+    ///
+    /// ```
+    /// use tapline::filter::MultiChannelFirUpTo;
+    /// let mut fir = MultiChannelFirUpTo::<i16, 4, 2>::with_taps(&[i16::MAX])?;
+    /// fir.push([1000, -1000]);
+    /// fir.set_taps(&[16384, 16384])?;
+    /// assert_eq!(fir.push([3000, i16::MIN]), [2000, -16884]); // (−1000 − 32768) / 2
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn set_taps(&mut self, taps: H) -> Result<(), Error> {
+        super::fir::check_taps::<S, T, W, N>(taps)?;
+        self.taps = taps;
+        Ok(())
+    }
+}
+
+impl<'a, S: MulAcc<i16, Acc32Checked>, const N: usize, const C: usize>
+    MultiChannelFirUpTo<'a, S, N, C, i16, Acc32Checked>
+{
+    /// A Q15 C-channel filter of capacity `N` with the 32-bit accumulator, for taps that passed
+    /// [`CheckedTaps::check`]: every channel's inputs are clamped into the checked range
+    /// (counted as saturations), so the check holds for every call; outputs are those of the
+    /// default `i64` path, bit for bit, for inputs within the range.
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`] or [`Error::TooManyTaps`].
+    ///
+    /// ```
+    /// use tapline::filter::MultiChannelFirUpTo;
+    /// use tapline::headroom::{Acc32Checked, CheckedTaps, InputRange};
+    /// let checked = CheckedTaps::check(&[32767; 2], InputRange::codes(0, 4095)?)?;
+    /// let mut fir = MultiChannelFirUpTo::<i16, 4, 2, i16, Acc32Checked>::with_checked(checked)?;
+    /// assert_eq!(fir.push([4095, i16::MIN]), [4095, 0]); // -32768 clamped to 0, counted
+    /// assert_eq!(fir.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_checked(checked: CheckedTaps<'a>) -> Result<Self, Error> {
+        let taps = checked.taps();
+        TapTable::<i16, N>::within_capacity(taps)?;
+        Ok(Self::with_parts(taps, checked.width()))
+    }
+}
+
+impl<'a, S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample + 'a, W, H>
+    MultiChannelFir<'a, S, N, C, T, W, H>
+where
+    H: TapTable<'a, T, N>,
 {
     output_controls!(output);
+
+    fn with_parts(taps: H, width: W) -> Self {
+        const { assert!(C > 0, "a multi-channel filter needs at least one channel") };
+        MultiChannelFir {
+            taps,
+            channels: core::array::from_fn(|_| Ring::new(S::ZERO)),
+            output: OutputStep::new(),
+            width,
+            borrowed: PhantomData,
+        }
+    }
 
     /// Filters one frame (one sample per channel) and returns one output per channel.
     #[inline]
@@ -105,8 +219,8 @@ impl<S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W>
     #[inline]
     fn filter_frame(&mut self, frame: &mut [S]) {
         for (history, v) in self.channels.iter_mut().zip(frame) {
-            history.push(self.output.admit::<S, T, W>(*v));
-            let acc = history_dot::<S, T, W, N>(S::ACC_ZERO, history, self.taps);
+            history.push(self.output.admit_within::<S, T, W>(&self.width, *v));
+            let acc = history_dot::<S, T, W, N>(S::ACC_ZERO, history, self.taps.as_slice());
             *v = self.output.finish::<S, T, W>(acc);
         }
     }
@@ -167,13 +281,19 @@ impl<S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W>
     /// The group delay of every channel, (N−1)/2 samples, for symmetric or antisymmetric taps.
     #[must_use]
     pub fn group_delay(&self) -> Option<GroupDelay> {
-        GroupDelay::of(self.taps)
+        GroupDelay::of(self.taps.as_slice())
     }
 
     /// The taps.
     #[must_use]
-    pub fn taps(&self) -> &[T; N] {
+    pub fn taps(&self) -> H {
         self.taps
+    }
+
+    /// How many taps are in use: `N` for a whole table, 1 to `N` for a run-time tap set.
+    #[must_use]
+    pub fn tap_count(&self) -> usize {
+        self.taps.as_slice().len()
     }
 }
 

@@ -31,6 +31,15 @@ impl OutputStep {
         x
     }
 
+    /// The input as a filter holding its width's value admits it ([`MulAcc::admit_within`]); a
+    /// changed input is counted.
+    #[inline(always)]
+    pub(crate) fn admit_within<S: MulAcc<T, W>, T: Sample, W>(&mut self, width: &W, x: S) -> S {
+        let (x, clamped) = S::admit_within(width, x);
+        self.count(clamped);
+        x
+    }
+
     /// [`MulAcc::finish`] with this step's rounding; a saturated output is counted.
     #[inline(always)]
     pub(crate) fn finish<S: MulAcc<T, W>, T: Sample, W>(&mut self, acc: S::Acc) -> S {
