@@ -108,7 +108,8 @@ def main():
     for name in regions.values():
         _, ty, taps, mode = name.split("_")
         rows.setdefault((ty, int(taps)), {})[mode] = name
-    order = ["i16", "acc32", "i32", "f32", "linphase", "dec4"]
+    order = ["i16", "i16upto", "acc32", "acc32upto", "i32", "i32upto", "f32", "f32upto",
+             "linphase", "dec4"]
     for (ty, taps) in sorted(rows, key=lambda k: (order.index(k[0]), k[1])):
         modes = rows[(ty, taps)]
         per = {}
@@ -121,7 +122,11 @@ def main():
         label = {"i16": "Q15 (i16), i64 acc", "acc32": "Q15, proven i32 acc",
                  "i32": "Q31 (i32)", "f32": "f32",
                  "linphase": "Q15 linear-phase, i64 acc",
-                 "dec4": "Q15 decimator by 4 (polyphase), i64 acc"}[ty]
+                 "dec4": "Q15 decimator by 4 (polyphase), i64 acc",
+                 "i16upto": "Q15 (i16), i64 acc, run-time taps in a capacity of 128",
+                 "acc32upto": "Q15, run-time checked i32 acc, run-time taps in a capacity of 128",
+                 "i32upto": "Q31 (i32), run-time taps in a capacity of 128",
+                 "f32upto": "f32, run-time taps in a capacity of 128"}[ty]
         print(f"| {label} | {taps} | {per['block64']:.2f} | {per['block256']:.2f} | "
               f"{per['sample']:.2f} | {per['sample'] / per['block64']:.2f} | {text} | "
               f"{states.get((ty, str(taps)), '?')} |")

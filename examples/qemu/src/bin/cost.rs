@@ -13,8 +13,8 @@ use core::hint::black_box;
 use cortex_m_rt::entry;
 use cortex_m_semihosting::{debug, hprintln};
 use scenario::*;
-use tapline::headroom::{Acc32, InputRange, ProvenTaps};
-use tapline::{Decimator, Fir, LinearPhaseFir};
+use tapline::headroom::{Acc32, Acc32Checked, CheckedTaps, InputRange, ProvenTaps};
+use tapline::{Decimator, Fir, FirUpTo, LinearPhaseFir};
 
 #[panic_handler]
 fn panic(_: &core::panic::PanicInfo) -> ! {
@@ -66,6 +66,37 @@ macro_rules! structure_costs {
                 Err(_) => return false,
             }
         }, q15, Option<i16>);
+    )*};
+}
+
+/// Taps known only at run time: `$n` of them in a filter of capacity 128, to set beside the rows
+/// of exactly `$n` taps (the same code, so the same cost is expected).
+macro_rules! run_time_costs {
+    ($( $name:ident, $ty:ident, $n:literal, $taps:expr, $input:ident ; )*) => {$(
+        paste_costs!($name, $ty, $n, FirUpTo<'static, $ty, 128>, {
+            static TAPS: [$ty; $n] = $taps;
+            match FirUpTo::<$ty, 128>::with_taps(&TAPS) {
+                Ok(f) => f,
+                Err(_) => return false,
+            }
+        }, $input, $ty);
+    )*};
+}
+
+/// Q15 with the 32-bit accumulator unlocked by the run-time check, full 16-bit input range.
+macro_rules! checked_costs {
+    ($( $n:literal ; )*) => {$(
+        paste_costs!(acc32upto, i16, $n, FirUpTo<'static, i16, 128, i16, Acc32Checked>, {
+            static TAPS: [i16; $n] = q15_taps::<$n>();
+            let checked = match CheckedTaps::check(&TAPS, InputRange::FULL) {
+                Ok(c) => c,
+                Err(_) => return false,
+            };
+            match FirUpTo::<i16, 128, i16, Acc32Checked>::with_checked(checked) {
+                Ok(f) => f,
+                Err(_) => return false,
+            }
+        }, q15, i16);
     )*};
 }
 
@@ -129,11 +160,23 @@ fn bench_main() -> bool {
         f32, f32, 16, f32_taps::<16>(), f32s;
         f32, f32, 64, f32_taps::<64>(), f32s;
         f32, f32, 256, f32_taps::<256>(), f32s;
+        i16, i16, 85, q15_taps::<85>(), q15;
+        i32, i32, 85, q31_taps::<85>(), q31;
+        f32, f32, 85, f32_taps::<85>(), f32s;
+    }
+    run_time_costs! {
+        i16upto, i16, 85, q15_taps::<85>(), q15;
+        i32upto, i32, 85, q31_taps::<85>(), q31;
+        f32upto, f32, 85, f32_taps::<85>(), f32s;
     }
     proven_costs! {
         Proof16, 16;
         Proof64, 64;
         Proof256, 256;
+        Proof85, 85;
+    }
+    checked_costs! {
+        85;
     }
     structure_costs! {
         16;
