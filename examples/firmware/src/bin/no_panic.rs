@@ -9,10 +9,12 @@
 
 use core::hint::black_box;
 use fixed::types::{I1F15, I4F12};
-use tapline::headroom::{Acc32, AccTrace, measure_deviation};
+use tapline::headroom::{
+    Acc32, Acc32Checked, AccTrace, CheckedTaps, InputRange, measure_deviation,
+};
 use tapline::num::Acc128;
 use tapline::{
-    CicDecimator, Decimator, Fir, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir,
+    CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, MultiChannelFirUpTo, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir,
     MovingAverage, MultiChannelFir, Ring, Rounding, Span, convolve, correlate,
 };
 use tapline_firmware::{SMOOTH_64, Smooth64};
@@ -76,6 +78,58 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
         black_box(fir.clear_saturations());
         fir.reset();
         black_box(out);
+    }
+
+    // Taps known only at run time: an opaque count of the table, the run-time check, and
+    // every structure that takes them.
+    let used = black_box(9usize).min(Q15_TAPS.len());
+    let taps = Q15_TAPS.get(..used).unwrap_or(&Q15_TAPS);
+    if let Ok(fir) = FirUpTo::<i16, 32>::with_taps(taps) {
+        let mut fir = fir.with_rounding(rounding);
+        black_box(fir.push(black_box(block_i16[0])));
+        let mut out = [0i16; 64];
+        let _ = fir.process(&block_i16[..len], &mut out[..len]);
+        fir.process_in_place(&mut block_i16[..len]);
+        let _ = fir.set_taps(black_box(&Q15_TAPS[..]));
+        black_box(fir.push(block_i16[1]));
+        black_box(out);
+    }
+    if let Ok(fir) = FirUpTo::<i32, 16>::with_taps(black_box(&Q31_TAPS[..])) {
+        let mut fir = fir;
+        fir.process_in_place(&mut block_i32[..len]);
+    }
+    if let Ok(fir) = FirUpTo::<f32, 16>::with_taps(black_box(&F32_TAPS[..])) {
+        let mut fir = fir;
+        fir.process_in_place(&mut block_f32[..len]);
+    }
+    let range = InputRange::codes(black_box(-2048), black_box(2047)).unwrap_or(InputRange::FULL);
+    if let Ok(checked) = CheckedTaps::check(taps, range) {
+        if let Ok(mut fir) = FirUpTo::<i16, 32, i16, Acc32Checked>::with_checked(checked) {
+            black_box(fir.push(black_box(block_i16[2])));
+            fir.process_in_place(&mut block_i16[..len]);
+            let _ = fir.set_checked(black_box(checked));
+        }
+        if let Ok(mut dec) = DecimatorUpTo::<i16, 32, 4, i16, Acc32Checked>::with_checked(checked) {
+            black_box(dec.push(black_box(block_i16[3])));
+            let mut out = [0i16; 16];
+            let _ = dec.process(&block_i16[..len], &mut out);
+            black_box(out);
+        }
+        if let Ok(mut multi) =
+            MultiChannelFirUpTo::<i16, 32, 4, i16, Acc32Checked>::with_checked(checked)
+        {
+            let _ = multi.process_in_place(&mut block_i16[..len - len % 4]);
+        }
+    }
+    if let Ok(mut dec) = DecimatorUpTo::<i16, 32, 4>::with_taps(taps) {
+        black_box(dec.push(black_box(block_i16[4])));
+        black_box(dec.process_in_place(&mut block_i16[..len]));
+        let _ = dec.set_taps(black_box(&Q15_TAPS[..]));
+    }
+    if let Ok(mut multi) = MultiChannelFirUpTo::<i16, 32, 4>::with_taps(taps) {
+        black_box(multi.push(black_box([block_i16[5]; 4])));
+        let _ = multi.process_in_place(&mut block_i16[..len - len % 4]);
+        let _ = multi.set_taps(black_box(&Q15_TAPS[..]));
     }
 
     let mut proven: Fir<'static, i16, 64, i16, Acc32<Smooth64>> = Fir::proven();
