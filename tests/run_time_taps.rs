@@ -52,7 +52,12 @@ fn exact(h: &[i64], x: &[i64], frac: u32, bits: u32, mode: Rounding) -> (Vec<i64
 }
 
 /// Per sample, per block with the given splits, and in place: the outputs of `fir`.
-fn every_way<S: MulAcc<T, W>, T: Sample + 'static, W, H: tapline::filter::TapTable<'static, T, CAP>>(
+fn every_way<
+    S: MulAcc<T, W>,
+    T: Sample + 'static,
+    W,
+    H: tapline::filter::TapTable<'static, T, CAP>,
+>(
     fir: &mut Fir<'static, S, CAP, T, W, H>,
     xs: &[S],
     sizes: &[usize],
@@ -99,7 +104,10 @@ where
     let (mut fixed, mut run_time) = match (fixed, run_time) {
         (Ok(a), Ok(b)) => (a.with_rounding(mode), b.with_rounding(mode)),
         (Err(a), Err(b)) => {
-            assert_eq!((a, b), (Error::AccumulatorOverflow, Error::AccumulatorOverflow));
+            assert_eq!(
+                (a, b),
+                (Error::AccumulatorOverflow, Error::AccumulatorOverflow)
+            );
             return;
         }
         (a, b) => panic!(
@@ -115,7 +123,10 @@ where
     let compile_time: Vec<S> = xs.iter().map(|&v| fixed.push(v)).collect();
     assert_eq!(compile_time, want);
     for (way, (got, count)) in every_way(&mut run_time, &xs, sizes).into_iter().enumerate() {
-        assert_eq!(got, want, "way {way}, taps {h:?}, splits {sizes:?}, {mode:?}");
+        assert_eq!(
+            got, want,
+            "way {way}, taps {h:?}, splits {sizes:?}, {mode:?}"
+        );
         assert_eq!(count, saturations, "way {way}");
     }
 }
@@ -278,8 +289,11 @@ fn range16() -> impl Strategy<Value = InputRange> {
         (1u32..=16, any::<bool>()).prop_map(|(bits, left)| {
             InputRange::adc(bits, if left { Align::Left } else { Align::Right }, 16).unwrap()
         }),
-        (-32768i64..=32767, -32768i64..=32767)
-            .prop_map(|(a, b)| InputRange::codes(a.min(b), a.max(b)).unwrap()),
+        (-32768i64..=32767, -32768i64..=32767).prop_map(|(a, b)| InputRange::codes(
+            a.min(b),
+            a.max(b)
+        )
+        .unwrap()),
     ]
 }
 

@@ -70,8 +70,7 @@ use core::marker::PhantomData;
 // measured per-sample cost of a 256-tap Q15 filter on the Cortex-M0 rose by 7 %.
 #[repr(C)]
 #[derive(Clone, Debug)]
-pub struct Fir<'a, S: MulAcc<T, W>, const N: usize, T: Sample = S, W = DefaultAcc, H = &'a [T; N]>
-{
+pub struct Fir<'a, S: MulAcc<T, W>, const N: usize, T: Sample = S, W = DefaultAcc, H = &'a [T; N]> {
     taps: H,
     history: Ring<S, N>,
     output: OutputStep,
@@ -217,7 +216,7 @@ where
     /// }
     /// fir.set_taps(&long)?; // recalibrated: the history is kept
     /// // (400 + 800 + 1200 + 32767) / 4 = 8791.75, rounded half up
-/// assert_eq!(fir.push(i16::MAX), 8792);
+    /// assert_eq!(fir.push(i16::MAX), 8792);
     /// assert_eq!(fir.set_taps(&[]), Err(Error::NoTaps));
     /// assert_eq!(fir.tap_count(), 4);
     /// # Ok::<(), tapline::Error>(())
@@ -303,11 +302,7 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample + 'a, W, H: TapTable<'a, T, 
     #[inline]
     fn accumulate(&self) -> S::Acc {
         // With fewer taps than N the kernel reads only the newest `taps.len()` inputs.
-        super::shared::history_dot::<S, T, W, N>(
-            S::ACC_ZERO,
-            &self.history,
-            self.taps.as_slice(),
-        )
+        super::shared::history_dot::<S, T, W, N>(S::ACC_ZERO, &self.history, self.taps.as_slice())
     }
 
     /// Filters `input` into `output`, sample by sample, exactly as repeated [`push`](Fir::push).

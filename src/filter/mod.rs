@@ -15,8 +15,8 @@ mod shared;
 mod taps;
 
 pub use fir::{Fir, FirUpTo};
-pub use taps::TapTable;
 pub use group_delay::GroupDelay;
+pub use taps::TapTable;
 // Symmetry is tap-set analysis (headroom), kept at this path too, where filters use it.
 pub use crate::headroom::Symmetry;
 

@@ -20,10 +20,10 @@ mod range;
 mod symmetry;
 mod trace;
 
+pub use crate::num::Acc32Checked;
 pub use analysis::{AccWidth, Extreme, Headroom};
 pub use deviation::{Deviation, ErrorBound, measure_deviation};
 pub(crate) use proof::proof_holds;
-pub use crate::num::Acc32Checked;
 pub use proof::{Acc32, CheckedTaps, ProvenTaps};
 pub use range::{Align, InputRange};
 pub use symmetry::Symmetry;

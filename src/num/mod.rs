@@ -12,6 +12,7 @@
 //! | `i16` (Q15) | `i16` (Q15) | [`DefaultAcc`] | `i64`, exact | `>> 15`, [`Rounding`], saturate to `i16` |
 //! | `FixedI16<Fs>` | `FixedI16<Ft>` | [`DefaultAcc`] | `i64`, exact | `>> Ft`, [`Rounding`], saturate |
 //! | `i16`, `FixedI16<Fs>` | `i16` (Q15) | [`Acc32<P>`](Acc32) | `i32`, exact by a compile-time proof | as above |
+//! | `i16`, `FixedI16<Fs>` | `i16` (Q15) | [`Acc32Checked`] | `i32`, exact by a run-time check | as above |
 //! | `i32` (Q31) | `i32` (Q31) | [`DefaultAcc`] | `i64`, exact while Σ\|h\| < 2 | `>> 31`, [`Rounding`], saturate to `i32` |
 //! | `FixedI32<Fs>` | `FixedI32<Ft>` | [`DefaultAcc`] | `i64`, exact while in range | `>> Ft`, [`Rounding`], saturate |
 //! | `i32`, `FixedI32<Fs>` | as above | [`Acc128`] | `i128`, exact for any taps | as above |
