@@ -79,6 +79,10 @@ pub mod headroom;
 pub mod kernel;
 pub mod num;
 pub mod ring;
+/// The host tool's internals (feature `cli`): input readers, one job per command, report and
+/// file output. Not for firmware; see the module page.
+#[cfg(feature = "cli")]
+pub mod tool;
 
 pub use convolve::{Span, convolve, correlate};
 pub use error::Error;

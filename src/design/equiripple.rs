@@ -54,6 +54,11 @@ pub struct Equiripple {
 /// cosine terms), 16 as in Parks & McClellan's program.
 pub const EQUIRIPPLE_GRID_DENSITY: usize = 16;
 
+/// The longest filter [`equiripple`] designs; a longer length is refused with
+/// [`Error::InvalidTransition`]. The exchange's work per iteration grows with the square of
+/// the length, so the cap keeps a host-side design within seconds.
+pub const MAX_EQUIRIPPLE_TAPS: usize = 1024;
+
 /// The iteration cap [`equiripple`] uses.
 pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 
@@ -69,7 +74,7 @@ pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 /// # Errors
 /// [`Error::TooShort`] for fewer than 3 taps or no band; [`Error::FrequencyOutOfRange`];
 /// [`Error::EdgesNotIncreasing`] for overlapping or unordered bands; [`Error::InvalidBandGain`];
-/// [`Error::InvalidTransition`] for more than 1024 taps; [`Error::NoConvergence`] when the
+/// [`Error::InvalidTransition`] for more than [`MAX_EQUIRIPPLE_TAPS`] taps; [`Error::NoConvergence`] when the
 /// exchange does not settle within the cap, loses its alternation, or its arithmetic
 /// overflows. It never loops without bound.
 ///
@@ -119,7 +124,7 @@ pub fn equiripple_with(
             found: len,
         });
     }
-    if len > 1024 {
+    if len > MAX_EQUIRIPPLE_TAPS {
         return Err(Error::InvalidTransition);
     }
     if !(sample_rate_hz.is_finite() && sample_rate_hz > 0.0) {

@@ -19,6 +19,7 @@
 //! | `band.rs` | windowed-sinc [`Band`] designs: [`windowed_sinc`] |
 //! | `spec.rs` | [`Spec`]: a band spec → a Kaiser design that meets it, and measurement against it |
 //! | `equiripple.rs` | Parks–McClellan (`equiripple`, `std` only) |
+//! | `search.rs` | the shortest equiripple design that meets a spec, before and after quantization (`std` only) |
 //! | `savitzky_golay.rs` | [`savitzky_golay_smoother`], [`savitzky_golay_slope`] |
 //! | `moving_average.rs` | [`moving_average`] (boxcar) |
 //! | `quantize.rs` | [`quantize`]: float taps → Q15/Q31/`fixed` with exact DC gain |
@@ -40,14 +41,16 @@ mod quantize;
 mod real;
 mod response;
 mod savitzky_golay;
+#[cfg(feature = "std")]
+mod search;
 mod spec;
 mod window;
 
 pub use band::{Band, windowed_sinc};
 #[cfg(feature = "std")]
 pub use equiripple::{
-    EQUIRIPPLE_GRID_DENSITY, EQUIRIPPLE_MAX_ITERATIONS, Equiripple, EquirippleBand, equiripple,
-    equiripple_with,
+    EQUIRIPPLE_GRID_DENSITY, EQUIRIPPLE_MAX_ITERATIONS, Equiripple, EquirippleBand,
+    MAX_EQUIRIPPLE_TAPS, equiripple, equiripple_with,
 };
 pub use moving_average::moving_average;
 pub use quantize::{Quantized, quantize};
@@ -56,7 +59,9 @@ pub use response::{
     Complex, GainRange, dc_gain, gain_range, group_delay_at, half_power_frequency, response_at,
 };
 pub use savitzky_golay::{savitzky_golay_slope, savitzky_golay_smoother};
-pub use spec::{FixedDesign, KaiserDesign, Measured, Shape, Spec};
+#[cfg(feature = "std")]
+pub use search::{EquirippleDesign, FixedEquiripple};
+pub use spec::{FixedDesign, KaiserDesign, Measured, QUANTIZATION_MARGINS_DB, Shape, Spec};
 pub use window::Window;
 
 /// The largest Kaiser β accepted: I₀(40) ≈ 1.5·10¹⁶ keeps every window value finite in `f32`,

@@ -17,7 +17,7 @@ mod range;
 mod trace;
 
 pub use analysis::{AccWidth, Extreme, Headroom};
-pub use deviation::{Deviation, ErrorBound, measure_deviation};
+pub use deviation::{Deviation, ErrorBound, f32_error_bound, gamma, measure_deviation};
 pub use proof::{Acc32, ProvenTaps};
 pub use range::{Align, InputRange};
 pub use trace::AccTrace;

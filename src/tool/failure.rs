@@ -2,6 +2,8 @@
 //! (bad input or a file that could not be read or written). "Can overflow" is not a failure:
 //! `check` reports it and exits 1.
 
+use std::prelude::rust_2024::*;
+use std::format;
 use std::fmt;
 use std::path::Path;
 

@@ -17,16 +17,21 @@
 //!                            # the shortest that meets the spec
 //! ```
 
-use crate::failure::{Failure, line_column};
-use crate::taps::{Adc, AlignArg, Format};
+use std::prelude::rust_2024::*;
+use std::format;
+use crate::tool::failure::{Failure, line_column};
+use crate::tool::input::taps::{Adc, AlignArg, Format};
 use clap::{Args, ValueEnum};
 use serde::Deserialize;
 use std::path::{Path, PathBuf};
-use tapline::design::{Shape, Spec};
+use crate::design::{Shape, Spec};
 use toml::Spanned;
 
 /// The band layout.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+// No doc comments on these variants: clap would turn them into per-value help text and
+// change `--help`.
+#[allow(missing_docs)]
 pub enum BandKind {
     Lowpass,
     Highpass,
@@ -39,6 +44,7 @@ impl BandKind {
         BandKind::from_str(text, true).ok()
     }
 
+    /// The band layout's name as the tool prints it.
     pub fn name(self) -> &'static str {
         match self {
             BandKind::Lowpass => "lowpass",
@@ -70,6 +76,7 @@ pub enum Method {
 }
 
 impl Method {
+    /// The method's name as the tool prints it.
     pub fn name(self) -> &'static str {
         match self {
             Method::Window => "window",
@@ -132,11 +139,17 @@ pub struct SpecArgs {
 /// A checked spec and what it is for.
 #[derive(Debug, Clone)]
 pub struct Chosen {
+    /// The library's spec (sample rate, band edges, ripple, attenuation).
     pub spec: Spec<f64>,
+    /// The band layout as asked for.
     pub band: BandKind,
+    /// The band edges in Hz, in the order given.
     pub edges: Vec<f64>,
+    /// The tap format.
     pub format: Format,
+    /// The ADC feeding the filter.
     pub adc: Adc,
+    /// How the taps are designed.
     pub method: Method,
     /// Equiripple only: the length asked for (None: the shortest that meets the spec).
     pub length: Option<usize>,
@@ -362,11 +375,11 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
     let (attenuation, place) = &p.attenuation;
     if !(attenuation.is_finite()
         && *attenuation > 0.0
-        && *attenuation <= tapline::design::MAX_ATTENUATION_DB)
+        && *attenuation <= crate::design::MAX_ATTENUATION_DB)
     {
         return Err(place.fail(format!(
             "expected an attenuation in dB above 0 and at most {}, found {attenuation}",
-            tapline::design::MAX_ATTENUATION_DB
+            crate::design::MAX_ATTENUATION_DB
         )));
     }
     let word = p.format.word_bits();

@@ -8,19 +8,21 @@
 //! Units: fixed-point errors are in LSB of the output word (= LSB of the input codes); f32
 //! errors are in the capture's own unit (ADC codes if it holds codes, volts if volts).
 
-use crate::atomic::Streaming;
-use crate::capture::{Capture, Kind, Pick};
-use crate::design::Taps;
-use crate::failure::Failure;
-use crate::progress::Bar;
-use crate::report::{self, Report};
-use crate::taps::{Adc, Codes, Format};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
+use crate::tool::output::atomic::Streaming;
+use crate::tool::input::capture::{Capture, Kind, Pick};
+use crate::tool::jobs::design::Taps;
+use crate::tool::failure::Failure;
+use crate::tool::output::progress::Bar;
+use crate::tool::output::report::{self, Report};
+use crate::tool::input::taps::{Adc, Codes, Format};
 use serde_json::{Value, json};
 use std::fmt::Write as _;
 use std::path::PathBuf;
-use tapline::headroom::{AccTrace, Headroom, InputRange};
-use tapline::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, RuntimeChecked};
-use tapline::{Fir, Rounding};
+use crate::headroom::{AccTrace, Headroom, InputRange};
+use crate::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, RuntimeChecked};
+use crate::{Fir, Rounding};
 
 pub struct Request {
     pub capture: PathBuf,

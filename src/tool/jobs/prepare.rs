@@ -14,19 +14,21 @@
 //! when the taps are safe and every replayed output stayed within the error bound, 1 otherwise,
 //! 2 on bad input.
 
-use crate::atomic;
-use crate::capture::Pick;
-use crate::design::{self, Designed, Taps};
-use crate::failure::Failure;
-use crate::plot;
-use crate::replay::{self, Replayed};
-use crate::report::Report;
-use crate::spec::Chosen;
-use crate::taps::Format;
+use std::prelude::rust_2024::*;
+use std::format;
+use crate::tool::output::atomic;
+use crate::tool::input::capture::Pick;
+use crate::tool::jobs::design::{self, Designed, Taps};
+use crate::tool::failure::Failure;
+use crate::tool::jobs::plot;
+use crate::tool::jobs::replay::{self, Replayed};
+use crate::tool::output::report::Report;
+use crate::tool::input::spec::Chosen;
+use crate::tool::input::taps::Format;
 use serde_json::json;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
-use tapline::Rounding;
+use crate::Rounding;
 
 /// The files, in the order the report lists them, with what each holds.
 pub const FILES: [(&str, &str); 4] = [

@@ -2,17 +2,19 @@
 //! equiripple) → the measured figures and the headroom proof; `emit` also writes the taps as a
 //! Rust source file.
 
-use crate::atomic;
-use crate::failure::Failure;
-use crate::report::{self, Report};
-use crate::spec::{BandKind, Chosen, MAX_EQUIRIPPLE_TAPS, Method};
-use crate::taps::{Codes, Format};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
+use crate::tool::output::atomic;
+use crate::tool::failure::Failure;
+use crate::tool::output::report::{self, Report};
+use crate::tool::input::spec::{BandKind, Chosen, MAX_EQUIRIPPLE_TAPS, Method};
+use crate::tool::input::taps::{Codes, Format};
 use serde_json::{Value, json};
 use std::fmt::Write;
 use std::path::Path;
-use tapline::design::{EquirippleBand, Measured, Spec, equiripple};
-use tapline::headroom::{ErrorBound, Headroom};
-use tapline::{Error, Rounding};
+use crate::design::{EquirippleBand, Measured, Spec, equiripple};
+use crate::headroom::{ErrorBound, Headroom};
+use crate::{Error, Rounding};
 
 /// The longest design the tool makes (the library's designs are fixed-capacity).
 pub const MAX_TAPS: usize = 2048;

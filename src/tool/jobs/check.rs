@@ -1,14 +1,16 @@
 //! `check`: the headroom of an existing tap table, for the ADC that feeds it.
 
-use crate::atomic;
-use crate::failure::Failure;
-use crate::report::{self, Report};
-use crate::taps::{self, Adc, Format, Written};
+use std::prelude::rust_2024::*;
+use std::format;
+use crate::tool::output::atomic;
+use crate::tool::failure::Failure;
+use crate::tool::output::report::{self, Report};
+use crate::tool::input::taps::{self, Adc, Format, Written};
 use serde_json::json;
 use std::fmt::Write;
 use std::path::PathBuf;
-use tapline::Rounding;
-use tapline::headroom::Extreme;
+use crate::Rounding;
+use crate::headroom::Extreme;
 
 pub struct Request {
     pub table: PathBuf,

@@ -1,12 +1,16 @@
 //! What every subcommand hands back: text for a person, JSON for a program, and an exit status.
 
+use std::prelude::rust_2024::*;
+use std::format;
 use serde_json::{Value, json};
-use tapline::Rounding;
-use tapline::headroom::Headroom;
+use crate::Rounding;
+use crate::headroom::Headroom;
 
 /// A finished command's output.
 pub struct Report {
+    /// The report for a person, one fact a line.
     pub text: String,
+    /// The same report for a program.
     pub json: Value,
     /// 0: done and safe; 1: done, and the taps can overflow.
     pub status: u8,
@@ -82,11 +86,11 @@ pub fn headroom_text(h: &Headroom, rounding: Rounding) -> String {
     text
 }
 
+/// The rounding mode's name as the command line spells it.
 pub fn rounding_name(r: Rounding) -> &'static str {
     match r {
         Rounding::HalfUp => "half-up",
         Rounding::Truncate => "truncate",
         Rounding::HalfEven => "half-even",
-        _ => "other",
     }
 }

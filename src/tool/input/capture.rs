@@ -4,7 +4,9 @@
 //! chosen by the names in a header row — one channel each. Every mistake is one line naming the
 //! file, line and column.
 
-use crate::failure::Failure;
+use std::prelude::rust_2024::*;
+use std::format;
+use crate::tool::failure::Failure;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};

@@ -2,7 +2,9 @@
 //! flushed, then renamed over the target (a rename within one directory is atomic on POSIX file
 //! systems). A failure on the way removes the temporary file.
 
-use crate::failure::Failure;
+use std::prelude::rust_2024::*;
+use std::format;
+use crate::tool::failure::Failure;
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
