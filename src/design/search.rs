@@ -124,8 +124,8 @@ impl Spec<f64> {
     pub fn equiripple_estimate(&self) -> Result<usize, Error> {
         let width = self.transition_width()?;
         let product = self.passband_deviation() * self.stopband_deviation();
-        let n = (-20.0 * product.sqrt().log10() - 13.0) / (14.6 * width / self.sample_rate_hz)
-            + 1.0;
+        let n =
+            (-20.0 * product.sqrt().log10() - 13.0) / (14.6 * width / self.sample_rate_hz) + 1.0;
         let n = if n.is_finite() {
             n.ceil().max(3.0)
         } else {

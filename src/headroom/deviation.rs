@@ -23,7 +23,11 @@ use crate::{Error, Fir, Ring, Rounding};
 #[must_use]
 pub fn gamma(n: usize, unit_roundoff: f64) -> f64 {
     let nu = n as f64 * unit_roundoff;
-    if nu < 1.0 { nu / (1.0 - nu) } else { f64::INFINITY }
+    if nu < 1.0 {
+        nu / (1.0 - nu)
+    } else {
+        f64::INFINITY
+    }
 }
 
 /// The largest |y_f32 − y_f64| of an `f32` FIR filter (taps `taps`, samples rounded to `f32`,

@@ -268,6 +268,7 @@ fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
         adc,
         rounding: a.rounding.into(),
         out: a.out.clone(),
+        known: None,
     })
 }
 
@@ -292,7 +293,7 @@ fn table_taps(
     let table = taps::read(path, format, written.unwrap_or(Written::Codes))?;
     let ideal = match table.ideal {
         Some(ideal) => ideal,
-        None => replay::codes_as_reals(&table.codes, format),
+        None => replay::codes_as_reals(&table.codes),
     };
     Ok((design::Taps::Fixed(table.codes), ideal))
 }

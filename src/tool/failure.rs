@@ -2,10 +2,10 @@
 //! (bad input or a file that could not be read or written). "Can overflow" is not a failure:
 //! `check` reports it and exits 1.
 
-use std::prelude::rust_2024::*;
-use std::format;
 use std::fmt;
+use std::format;
 use std::path::Path;
+use std::prelude::rust_2024::*;
 
 /// A one-line reason the command could not do its work.
 #[derive(Debug)]

@@ -17,14 +17,14 @@
 //!                            # the shortest that meets the spec
 //! ```
 
-use std::prelude::rust_2024::*;
-use std::format;
+use crate::design::{MAX_EQUIRIPPLE_TAPS, Shape, Spec};
 use crate::tool::failure::{Failure, line_column};
 use crate::tool::input::taps::{Adc, AlignArg, Format};
 use clap::{Args, ValueEnum};
 use serde::Deserialize;
+use std::format;
 use std::path::{Path, PathBuf};
-use crate::design::{Shape, Spec};
+use std::prelude::rust_2024::*;
 use toml::Spanned;
 
 /// The band layout.
@@ -84,9 +84,6 @@ impl Method {
         }
     }
 }
-
-/// The longest equiripple design the library makes.
-pub const MAX_EQUIRIPPLE_TAPS: usize = 1024;
 
 /// The spec, as flags or as a file.
 #[derive(Args, Clone)]
@@ -395,32 +392,6 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             u32::try_from(*bits).ok()
         }
     };
-    let length = match &p.length {
-        None => None,
-        Some((_, place)) if p.method != Method::Equiripple => {
-            return Err(place.fail(
-                "expected a length only with method equiripple (the Kaiser window design finds its own length)",
-            ));
-        }
-        Some((n, place)) => {
-            let max = MAX_EQUIRIPPLE_TAPS as i64;
-            if !(3..=max).contains(n) {
-                return Err(place.fail(format!(
-                    "expected an equiripple length in 3..={max} taps, found {n}"
-                )));
-            }
-            // Parks–McClellan here makes symmetric taps only; an even-length symmetric filter
-            // has a zero at fs/2, so a band that passes fs/2 needs an odd length.
-            let passes_half = matches!(p.band, BandKind::Highpass | BandKind::Bandstop);
-            if passes_half && n % 2 == 0 {
-                return Err(place.fail(format!(
-                    "expected an odd length for a {} with method equiripple, found {n}: its taps are symmetric, and even-length symmetric taps have a zero at fs/2",
-                    p.band.name()
-                )));
-            }
-            usize::try_from(*n).ok()
-        }
-    };
     let e: Vec<f64> = p.edges.iter().map(|(e, _)| *e).collect();
     let edge = |k: usize| e.get(k).copied().unwrap_or(0.0);
     let shape = match p.band {
@@ -445,13 +416,39 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             pass_high_hz: edge(3),
         },
     };
+    let spec = Spec {
+        sample_rate_hz: *rate,
+        shape,
+        passband_ripple_db: *ripple,
+        stopband_attenuation_db: *attenuation,
+    };
+    let length = match &p.length {
+        None => None,
+        Some((_, place)) if p.method != Method::Equiripple => {
+            return Err(place.fail(
+                "expected a length only with method equiripple (the Kaiser window design finds its own length)",
+            ));
+        }
+        Some((n, place)) => {
+            let max = MAX_EQUIRIPPLE_TAPS as i64;
+            if !(3..=max).contains(n) {
+                return Err(place.fail(format!(
+                    "expected an equiripple length in 3..={max} taps, found {n}"
+                )));
+            }
+            // Parks–McClellan here makes symmetric taps only; an even-length symmetric filter
+            // has a zero at fs/2, so a band that passes fs/2 needs an odd length.
+            if spec.needs_odd() && n % 2 == 0 {
+                return Err(place.fail(format!(
+                    "expected an odd length for a {} with method equiripple, found {n}: its taps are symmetric, and even-length symmetric taps have a zero at fs/2",
+                    p.band.name()
+                )));
+            }
+            usize::try_from(*n).ok()
+        }
+    };
     Ok(Chosen {
-        spec: Spec {
-            sample_rate_hz: *rate,
-            shape,
-            passband_ripple_db: *ripple,
-            stopband_attenuation_db: *attenuation,
-        },
+        spec,
         band: p.band,
         edges: e,
         format: p.format,

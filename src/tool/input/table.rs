@@ -2,10 +2,10 @@
 //! (CSV) or by spaces and tabs (plain text); blank lines and lines starting with `#` are skipped.
 //! Every data row must have as many fields as the first one.
 
-use std::prelude::rust_2024::*;
-use std::format;
 use crate::tool::failure::Failure;
+use std::format;
 use std::path::Path;
+use std::prelude::rust_2024::*;
 
 /// One field: its text and where it starts (1-based line and column).
 #[derive(Debug, Clone)]

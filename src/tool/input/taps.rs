@@ -1,14 +1,14 @@
 //! Tap tables in the formats the tool knows: Q15 and Q31 codes (fixed point, with a headroom
 //! analysis) and f32 (float; no headroom to prove).
 
-use std::prelude::rust_2024::*;
-use std::{format, vec};
+use crate::headroom::{Align, ErrorBound, Headroom, InputRange};
 use crate::tool::failure::Failure;
 use crate::tool::input::table;
+use crate::{Error, Rounding};
 use clap::ValueEnum;
 use std::path::Path;
-use crate::headroom::{Align, ErrorBound, Headroom, InputRange};
-use crate::{Error, Rounding};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
 
 /// The number format of a tap table.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

@@ -1,10 +1,10 @@
 //! What every subcommand hands back: text for a person, JSON for a program, and an exit status.
 
-use std::prelude::rust_2024::*;
-use std::format;
-use serde_json::{Value, json};
 use crate::Rounding;
 use crate::headroom::Headroom;
+use serde_json::{Value, json};
+use std::format;
+use std::prelude::rust_2024::*;
 
 /// A finished command's output.
 pub struct Report {
@@ -22,12 +22,6 @@ pub fn wide(v: i128) -> Value {
         Ok(v) => json!(v),
         Err(_) => json!(v.to_string()),
     }
-}
-
-/// Whether the taps are safe: the default 64-bit accumulator holds every sum, and no input in
-/// range makes the output saturate.
-pub fn is_safe(h: &Headroom, rounding: Rounding) -> bool {
-    h.fits(64) && !h.can_saturate(rounding)
 }
 
 /// The headroom analysis as JSON.
@@ -52,7 +46,7 @@ pub fn headroom_json(h: &Headroom, rounding: Rounding) -> Value {
         "output_min": wide(out_lo),
         "output_max": wide(out_hi),
         "output_can_saturate": h.can_saturate(rounding),
-        "safe": is_safe(h, rounding),
+        "safe": h.is_safe(rounding),
     })
 }
 
@@ -75,7 +69,7 @@ pub fn headroom_text(h: &Headroom, rounding: Rounding) -> String {
             "cannot saturate"
         }
     ));
-    let verdict = if is_safe(h, rounding) {
+    let verdict = if h.is_safe(rounding) {
         "SAFE: no input in range can overflow the accumulator or saturate the output"
     } else if !h.fits(64) {
         "CAN OVERFLOW: the 64-bit accumulator is too narrow for some input in range"
