@@ -1015,3 +1015,113 @@ fn silo_scale_spec_to_q15_fir() {
     assert!((g.attenuation_db() + db(peak)).abs() <= 0.001);
     let _ = <f32 as Real>::ONE;
 }
+
+// ---------------------------------------------------------------------------------------------
+// The one verification against the whole band plan: transition bands included
+// ---------------------------------------------------------------------------------------------
+
+/// An equiripple bandpass with unequal transition widths (50 Hz below the passband, 10 Hz
+/// above) meets its pass- and stopbands while the wide transition band is unconstrained: the
+/// exchange puts a large peak there (a fact of the trade: Parks–McClellan controls the error on
+/// the bands only; the "don't care" regions are free). Measured by this file's own DTFT on a
+/// dense grid, the peak is far above the passband; the library must then say "misses", and its
+/// transition figures must agree with the dense scan.
+#[test]
+fn transition_band_overshoot_is_a_miss() {
+    let spec = Spec {
+        sample_rate_hz: 1000.0f64,
+        shape: Shape::Bandpass {
+            stop_low_hz: 100.0,
+            pass_low_hz: 150.0,
+            pass_high_hz: 300.0,
+            stop_high_hz: 310.0,
+        },
+        passband_ripple_db: 0.5,
+        stopband_attenuation_db: 40.0,
+    };
+    let d = spec.equiripple_at(165).unwrap();
+    let h = &d.design.taps;
+    // The test's own measurement: every band at 64 points per 1/N plus a rescan of the extremes.
+    let (pass_lo, pass_hi) = band_extremes(h, 0.15, 0.30, 64);
+    let (_, stop_low) = band_extremes(h, 0.0, 0.10, 64);
+    let (_, stop_high) = band_extremes(h, 0.31, 0.5, 64);
+    let (_, transition_low) = band_extremes(h, 0.10, 0.15, 64);
+    let (_, transition_high) = band_extremes(h, 0.30, 0.31, 64);
+    assert!(db(pass_hi / pass_lo) <= 0.5, "passband holds");
+    assert!(-db(stop_low.max(stop_high)) >= 40.0, "stopbands hold");
+    let peak = transition_low.max(transition_high);
+    assert!(
+        db(peak) > 19.0,
+        "the wide transition band overshoots: {:.2} dB",
+        db(peak)
+    );
+    // The library's figures agree with the scan, and its verdict is a miss.
+    let m = d.measured;
+    assert!((m.passband_ripple_db - db(pass_hi / pass_lo)).abs() < 0.003);
+    assert!((m.transition_peak_db() - db(peak)).abs() < 0.003);
+    let at = m.transition.max_at_hz / 1000.0;
+    assert!(
+        (db(gain(h, at)) - db(peak)).abs() < 0.003,
+        "the peak is where it says"
+    );
+    assert!(!m.transition_within() && !m.meets());
+    // The search for one that meets therefore fails within the length limit.
+    assert!(matches!(
+        spec.shortest_equiripple(),
+        Err(Error::SpecNotMet { .. })
+    ));
+}
+
+/// A Kaiser lowpass falls monotonically through its transition band (a windowed sinc has no
+/// peak there beyond the passband's last ripple), so the transition check passes it; the
+/// dense scan confirms the transition band stays below the passband's limit.
+#[test]
+fn monotonic_transition_passes() {
+    let spec = Spec {
+        sample_rate_hz: 1000.0f64,
+        shape: Shape::Lowpass {
+            pass_hz: 5.0,
+            stop_hz: 50.0,
+        },
+        passband_ripple_db: 0.1,
+        stopband_attenuation_db: 60.0,
+    };
+    let d = spec.kaiser::<256>().unwrap();
+    let (pass_lo, _) = band_extremes(&d.taps, 0.0, 0.005, 64);
+    let (_, transition) = band_extremes(&d.taps, 0.005, 0.05, 64);
+    assert!(transition <= pass_lo * 10f64.powf(0.1 / 20.0));
+    assert!(d.measured.transition_within() && d.measured.meets());
+    assert!((d.measured.transition.max - transition).abs() < 1e-9);
+}
+
+/// The equiripple search's result meets the spec, and one step shorter does not (the search's
+/// promise), for a lowpass, a highpass (odd lengths only) and quantized Q15 taps.
+#[test]
+fn shortest_equiripple_is_shortest() {
+    let low = Spec {
+        sample_rate_hz: 1000.0f64,
+        shape: Shape::Lowpass {
+            pass_hz: 100.0,
+            stop_hz: 150.0,
+        },
+        passband_ripple_db: 0.5,
+        stopband_attenuation_db: 40.0,
+    };
+    let high = Spec {
+        shape: Shape::Highpass {
+            stop_hz: 100.0,
+            pass_hz: 150.0,
+        },
+        ..low
+    };
+    for (spec, step) in [(low, 1), (high, 2)] {
+        let d = spec.shortest_equiripple().unwrap();
+        let n = d.design.taps.len();
+        assert!(d.measured.meets());
+        assert!(!spec.equiripple_at(n - step).unwrap().measured.meets());
+        assert_eq!(n % 2, if step == 2 { 1 } else { n % 2 });
+    }
+    let q = low.equiripple_fixed::<i16>(None).unwrap();
+    assert!(q.measured.meets());
+    assert!(tapline::design::QUANTIZATION_MARGINS_DB.contains(&q.margin_db));
+}
