@@ -14,6 +14,7 @@
 //!
 //! | file | holds |
 //! |---|---|
+//! | `error.rs` | [`DesignError`]: why a design could not be made |
 //! | `window.rs` | [`Window`]: rectangular, triangular, Hann, Hamming, Blackman, Kaiser(β) |
 //! | `kaiser.rs` | Kaiser's estimates: [`kaiser::beta_for_attenuation`], [`kaiser::length_for_transition`], [`kaiser::attenuation_for_length`] |
 //! | `band.rs` | windowed-sinc [`Band`] designs: [`windowed_sinc`] |
@@ -35,6 +36,7 @@
 mod band;
 #[cfg(feature = "std")]
 mod equiripple;
+mod error;
 pub mod kaiser;
 mod moving_average;
 mod quantize;
@@ -52,6 +54,7 @@ pub use equiripple::{
     EQUIRIPPLE_GRID_DENSITY, EQUIRIPPLE_MAX_ITERATIONS, Equiripple, EquirippleBand,
     MAX_EQUIRIPPLE_TAPS, equiripple, equiripple_with,
 };
+pub use error::DesignError;
 pub use moving_average::moving_average;
 pub use quantize::{Quantized, quantize};
 pub use real::Real;
@@ -79,19 +82,19 @@ pub const MAX_DESIGN_TAPS: usize = 65_536;
 pub const MAX_POLYNOMIAL_ORDER: usize = 10;
 
 /// Checks a sample rate and returns half of it.
-fn nyquist<R: Real>(sample_rate_hz: R) -> Result<R, crate::Error> {
+fn nyquist<R: Real>(sample_rate_hz: R) -> Result<R, DesignError> {
     if sample_rate_hz.is_finite() && sample_rate_hz > R::ZERO {
         Ok(sample_rate_hz * R::from_f64(0.5))
     } else {
-        Err(crate::Error::FrequencyOutOfRange)
+        Err(DesignError::FrequencyOutOfRange)
     }
 }
 
 /// Checks that `f` lies strictly inside (0, fs/2).
-fn inside<R: Real>(f: R, nyquist: R) -> Result<R, crate::Error> {
+fn inside<R: Real>(f: R, nyquist: R) -> Result<R, DesignError> {
     if f.is_finite() && f > R::ZERO && f < nyquist {
         Ok(f)
     } else {
-        Err(crate::Error::FrequencyOutOfRange)
+        Err(DesignError::FrequencyOutOfRange)
     }
 }

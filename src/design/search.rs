@@ -3,9 +3,9 @@
 //! [`Spec::kaiser`] / [`Spec::kaiser_fixed`]; both quantized searches step through the same
 //! [`QUANTIZATION_MARGINS_DB`].
 
+use super::DesignError;
 use super::equiripple::{Equiripple, EquirippleBand, MAX_EQUIRIPPLE_TAPS, equiripple};
 use super::{Measured, QUANTIZATION_MARGINS_DB, Quantized, Shape, Spec, quantize};
-use crate::Error;
 use crate::num::FixedPoint;
 use std::vec;
 use std::vec::Vec;
@@ -57,9 +57,9 @@ impl Spec<f64> {
     /// let bands = spec.equiripple_bands()?;
     /// assert_eq!((bands[0].high_hz, bands[1].low_hz, bands[1].high_hz), (100.0, 150.0, 500.0));
     /// assert!((bands[1].weight - spec.passband_deviation() / 0.01).abs() < 1e-12);
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn equiripple_bands(&self) -> Result<Vec<EquirippleBand>, Error> {
+    pub fn equiripple_bands(&self) -> Result<Vec<EquirippleBand>, DesignError> {
         self.edges()?;
         let half = self.sample_rate_hz / 2.0;
         let weight = self.passband_deviation() / self.stopband_deviation();
@@ -119,9 +119,9 @@ impl Spec<f64> {
     /// };
     /// // δp = 0.0288, δs = 0.01: (−20·log10 √(2.88e-4) − 13) / (14.6·0.05) + 1 = 31.4
     /// assert_eq!(spec.equiripple_estimate()?, 32);
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn equiripple_estimate(&self) -> Result<usize, Error> {
+    pub fn equiripple_estimate(&self) -> Result<usize, DesignError> {
         let width = self.transition_width()?;
         let product = self.passband_deviation() * self.stopband_deviation();
         let n =
@@ -145,7 +145,7 @@ impl Spec<f64> {
     ///
     /// # Errors
     /// The spec's errors and those of [`equiripple`](super::equiripple);
-    /// [`Error::OddLengthRequired`] for an even length where the band needs an odd one.
+    /// [`DesignError::OddLengthRequired`] for an even length where the band needs an odd one.
     ///
     /// ```
     /// use tapline::design::{Shape, Spec};
@@ -159,11 +159,11 @@ impl Spec<f64> {
     /// assert!(d.measured.meets() && d.design.taps.len() == 40);
     /// // Edge case: 5 taps are far too few; the design is made and misses.
     /// assert!(!spec.equiripple_at(5)?.measured.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn equiripple_at(&self, len: usize) -> Result<EquirippleDesign, Error> {
+    pub fn equiripple_at(&self, len: usize) -> Result<EquirippleDesign, DesignError> {
         if self.needs_odd() && len % 2 == 0 {
-            return Err(Error::OddLengthRequired { found: len });
+            return Err(DesignError::OddLengthRequired { found: len });
         }
         let design = equiripple(len, &self.equiripple_bands()?, self.sample_rate_hz)?;
         let measured = self.measure(&design.taps)?;
@@ -185,7 +185,7 @@ impl Spec<f64> {
     /// neighbour one step shorter missing.
     ///
     /// # Errors
-    /// The spec's errors; [`Error::SpecNotMet`] (`taps` = [`MAX_EQUIRIPPLE_TAPS`]) when no
+    /// The spec's errors; [`DesignError::SpecNotMet`] (`taps` = [`MAX_EQUIRIPPLE_TAPS`]) when no
     /// length up to [`MAX_EQUIRIPPLE_TAPS`] meets it.
     ///
     /// ```
@@ -199,9 +199,9 @@ impl Spec<f64> {
     /// let d = spec.shortest_equiripple()?;
     /// let n = d.design.taps.len();
     /// assert!(d.measured.meets() && !spec.equiripple_at(n - 1)?.measured.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn shortest_equiripple(&self) -> Result<EquirippleDesign, Error> {
+    pub fn shortest_equiripple(&self) -> Result<EquirippleDesign, DesignError> {
         let estimate = self.equiripple_estimate()?;
         let step = if self.needs_odd() { 2 } else { 1 };
         let meets = |len: usize| match self.equiripple_at(len) {
@@ -216,7 +216,7 @@ impl Spec<f64> {
             let mut jump = step;
             loop {
                 if missed >= MAX_EQUIRIPPLE_TAPS {
-                    return Err(Error::SpecNotMet {
+                    return Err(DesignError::SpecNotMet {
                         taps: MAX_EQUIRIPPLE_TAPS,
                     });
                 }
@@ -251,7 +251,7 @@ impl Spec<f64> {
             }
         }
         let Some(mut best) = best else {
-            return Err(Error::SpecNotMet { taps: len });
+            return Err(DesignError::SpecNotMet { taps: len });
         };
         while len >= 3 + step {
             match meets(len - step) {
@@ -274,7 +274,7 @@ impl Spec<f64> {
     ///
     /// # Errors
     /// As [`shortest_equiripple`](Spec::shortest_equiripple) / [`equiripple_at`](Spec::equiripple_at)
-    /// and [`quantize`](super::quantize); [`Error::SpecNotMet`] (`taps` = the longest float
+    /// and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] (`taps` = the longest float
     /// design tried) when no margin helps.
     ///
     /// ```
@@ -289,13 +289,13 @@ impl Spec<f64> {
     /// assert!(d.measured.meets() && d.taps.len() == d.float.design.taps.len());
     /// // Edge case: 16-bit taps cannot reach 100 dB, whatever the margin.
     /// let deep = Spec { stopband_attenuation_db: 100.0, ..spec };
-    /// assert!(matches!(deep.equiripple_fixed::<i16>(None), Err(tapline::Error::SpecNotMet { .. })));
-    /// # Ok::<(), tapline::Error>(())
+    /// assert!(matches!(deep.equiripple_fixed::<i16>(None), Err(DesignError::SpecNotMet { .. })));
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
     pub fn equiripple_fixed<T: FixedPoint>(
         &self,
         length: Option<usize>,
-    ) -> Result<FixedEquiripple<T>, Error> {
+    ) -> Result<FixedEquiripple<T>, DesignError> {
         let margins: &[f64] = match length {
             Some(_) => &[0.0],
             None => &QUANTIZATION_MARGINS_DB,
@@ -326,6 +326,6 @@ impl Spec<f64> {
             }
             longest = longest.max(taps.len());
         }
-        Err(Error::SpecNotMet { taps: longest })
+        Err(DesignError::SpecNotMet { taps: longest })
     }
 }

@@ -1,6 +1,7 @@
 //! A filter spec as a firmware engineer writes it, the Kaiser design that meets it, and the
 //! measurement of any taps (float or quantized) against it.
 
+use super::DesignError;
 use super::{Band, GainRange, Real, Window, gain_range, inside, kaiser, nyquist, windowed_sinc};
 use crate::Error;
 use crate::num::{FixedPoint, Sample};
@@ -69,8 +70,8 @@ pub enum Shape<R> {
 /// assert!(design.measured.meets() && design.taps.len() <= 128);
 /// // Edge case: a stopband edge at half the sample rate is outside (0, fs/2).
 /// let bad = Spec { shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 500.0 }, ..spec };
-/// assert_eq!(bad.kaiser::<128>().err(), Some(tapline::Error::FrequencyOutOfRange));
-/// # Ok::<(), tapline::Error>(())
+/// assert_eq!(bad.kaiser::<128>().err(), Some(DesignError::FrequencyOutOfRange));
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -189,7 +190,7 @@ type Bands<R> = ([(R, R); 2], usize);
 
 impl<R: Real> Spec<R> {
     /// The edges in order, checked.
-    pub(super) fn edges(&self) -> Result<([R; 4], usize), Error> {
+    pub(super) fn edges(&self) -> Result<([R; 4], usize), DesignError> {
         let half = nyquist(self.sample_rate_hz)?;
         let z = R::ZERO;
         let (e, n) = match self.shape {
@@ -216,20 +217,20 @@ impl<R: Real> Spec<R> {
             .zip(e.iter().skip(1).take(n - 1))
             .any(|(a, b)| !(a < b))
         {
-            return Err(Error::EdgesNotIncreasing);
+            return Err(DesignError::EdgesNotIncreasing);
         }
         let db_ok = |v: R| v.is_finite() && v > R::ZERO;
         if !db_ok(self.passband_ripple_db)
             || !db_ok(self.stopband_attenuation_db)
             || self.stopband_attenuation_db > R::from_f64(super::MAX_ATTENUATION_DB)
         {
-            return Err(Error::InvalidDecibels);
+            return Err(DesignError::InvalidDecibels);
         }
         Ok((e, n))
     }
 
     /// (passbands, stopbands).
-    fn bands(&self) -> Result<(Bands<R>, Bands<R>), Error> {
+    fn bands(&self) -> Result<(Bands<R>, Bands<R>), DesignError> {
         let ([a, b, c, d], _) = self.edges()?;
         let (z, h) = (R::ZERO, self.sample_rate_hz * R::from_f64(0.5));
         Ok(match self.shape {
@@ -298,14 +299,14 @@ impl<R: Real> Spec<R> {
     }
 
     /// The narrower transition band's width in Hz (the one that sets the length).
-    pub(super) fn transition_width(&self) -> Result<R, Error> {
+    pub(super) fn transition_width(&self) -> Result<R, DesignError> {
         let ([a, b, c, d], n) = self.edges()?;
         Ok(if n == 4 { (b - a).min_of(d - c) } else { b - a })
     }
 
     /// The transition bands, as (low, high) in Hz: between each pair of neighbouring edges
     /// that separate a passband from a stopband.
-    fn transition_bands(&self) -> Result<Bands<R>, Error> {
+    fn transition_bands(&self) -> Result<Bands<R>, DesignError> {
         let ([a, b, c, d], n) = self.edges()?;
         let z = R::ZERO;
         Ok(if n == 4 {
@@ -323,8 +324,8 @@ impl<R: Real> Spec<R> {
     /// true extremes unless a lobe is narrower than 1/(8N) of the sample rate.
     ///
     /// # Errors
-    /// The spec's errors ([`Error::FrequencyOutOfRange`], [`Error::EdgesNotIncreasing`],
-    /// [`Error::InvalidDecibels`]); [`Error::TooShort`] for no taps.
+    /// The spec's errors ([`DesignError::FrequencyOutOfRange`], [`DesignError::EdgesNotIncreasing`],
+    /// [`DesignError::InvalidDecibels`]); [`DesignError::TooShort`] for no taps.
     ///
     /// ```
     /// use tapline::design::{Shape, Spec};
@@ -338,12 +339,12 @@ impl<R: Real> Spec<R> {
     /// let m = spec.measure(&[1.0f64])?;
     /// assert_eq!((m.passband_ripple_db, m.stopband_attenuation_db), (0.0, 0.0));
     /// assert!(!m.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn measure<T: Sample>(&self, taps: &[T]) -> Result<Measured<R>, Error> {
+    pub fn measure<T: Sample>(&self, taps: &[T]) -> Result<Measured<R>, DesignError> {
         let ((pass, n_pass), (stop, n_stop)) = self.bands()?;
         let fs = self.sample_rate_hz;
-        let merge = |bands: &[(R, R)]| -> Result<GainRange<R>, Error> {
+        let merge = |bands: &[(R, R)]| -> Result<GainRange<R>, DesignError> {
             let mut all: Option<GainRange<R>> = None;
             for &(lo, hi) in bands {
                 let g = gain_range(taps, lo, hi, fs)?;
@@ -365,7 +366,7 @@ impl<R: Real> Spec<R> {
                     },
                 });
             }
-            all.ok_or(Error::TooShort {
+            all.ok_or(DesignError::TooShort {
                 minimum: 1,
                 found: 0,
             })
@@ -401,13 +402,13 @@ impl<R: Real> Spec<R> {
     /// design and check specs beyond 80 dB in `f64`, on the host.
     ///
     /// # Errors
-    /// The spec's errors; [`Error::InvalidTransition`] for a transition so narrow that the
+    /// The spec's errors; [`DesignError::InvalidTransition`] for a transition so narrow that the
     /// estimate exceeds [`MAX_DESIGN_TAPS`](super::MAX_DESIGN_TAPS);
-    /// [`Error::OutputLength`] when the design needs more than `N` taps (`expected` is the
-    /// length it needs); [`Error::SpecNotMet`] if it still misses after 10 designs, or the
+    /// [`DesignError::Filter`]([`Error::OutputLength`]) when the design needs more than `N` taps (`expected` is the
+    /// length it needs); [`DesignError::SpecNotMet`] if it still misses after 10 designs, or the
     /// raised design attenuation would pass [`MAX_ATTENUATION_DB`](super::MAX_ATTENUATION_DB)
     /// (an `f32` design cannot resolve much beyond 120 dB).
-    pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, Error> {
+    pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, DesignError> {
         let ([a, b, c, d], _) = self.edges()?;
         let two = R::from_f64(2.0);
         let band = match self.shape {
@@ -456,7 +457,8 @@ impl<R: Real> Spec<R> {
                 return Err(Error::OutputLength {
                     expected: len,
                     found: N,
-                });
+                }
+                .into());
             }
             windowed_sinc(
                 band,
@@ -490,7 +492,7 @@ impl<R: Real> Spec<R> {
                 break;
             }
         }
-        Err(Error::SpecNotMet { taps: last_len })
+        Err(DesignError::SpecNotMet { taps: last_len })
     }
 
     /// [`kaiser`](Spec::kaiser), then [`quantize`](super::quantize) into the fixed-point
@@ -504,7 +506,7 @@ impl<R: Real> Spec<R> {
     /// them; their DC gain is exact where symmetry allows (see [`quantize`](super::quantize)).
     ///
     /// # Errors
-    /// As [`kaiser`](Spec::kaiser) and [`quantize`](super::quantize); [`Error::SpecNotMet`] if
+    /// As [`kaiser`](Spec::kaiser) and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] if
     /// even 9 dB of margin does not help (the format is too coarse for the spec: Q15 taps of a
     /// 150-tap lowpass do not reach 100 dB).
     ///
@@ -526,13 +528,13 @@ impl<R: Real> Spec<R> {
     ///     stopband_attenuation_db: 100.0,
     /// };
     /// let q15 = deep.kaiser_fixed::<i16, 512>();
-    /// assert!(matches!(q15, Err(tapline::Error::SpecNotMet { .. })));
+    /// assert!(matches!(q15, Err(DesignError::SpecNotMet { .. })));
     /// assert!(deep.kaiser_fixed::<i32, 512>()?.measured.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
     pub fn kaiser_fixed<T: FixedPoint, const N: usize>(
         &self,
-    ) -> Result<FixedDesign<R, T, N>, Error> {
+    ) -> Result<FixedDesign<R, T, N>, DesignError> {
         let mut longest = 0;
         for margin in QUANTIZATION_MARGINS_DB {
             let margin = R::from_f64(margin);
@@ -547,7 +549,8 @@ impl<R: Real> Spec<R> {
                 return Err(Error::OutputLength {
                     expected: float.taps.len(),
                     found: N,
-                });
+                }
+                .into());
             }
             let quantized = super::quantize(&float.taps, &mut taps)?;
             let measured = self.measure(&taps)?;
@@ -561,6 +564,6 @@ impl<R: Real> Spec<R> {
                 });
             }
         }
-        Err(Error::SpecNotMet { taps: longest })
+        Err(DesignError::SpecNotMet { taps: longest })
     }
 }

@@ -1,6 +1,7 @@
 //! Tap tables in the formats the tool knows: Q15 and Q31 codes (fixed point, with a headroom
 //! analysis) and f32 (float; no headroom to prove).
 
+use crate::design::DesignError;
 use crate::headroom::{Align, ErrorBound, Headroom, InputRange};
 use crate::tool::failure::Failure;
 use crate::tool::input::table;
@@ -174,7 +175,10 @@ impl Codes {
     }
 
     /// Quantizes real taps into `format` (Q15 or Q31).
-    pub fn quantize(ideal: &[f64], format: Format) -> Result<Codes, Error> {
+    ///
+    /// # Errors
+    /// As [`quantize`](crate::design::quantize).
+    pub fn quantize(ideal: &[f64], format: Format) -> Result<Codes, DesignError> {
         Ok(match format {
             Format::Q15 => {
                 let mut q = vec![0i16; ideal.len()];
@@ -237,7 +241,7 @@ pub fn read(path: &Path, format: Format, written: Written) -> Result<Table, Fail
                 ));
             }
             let codes = Codes::quantize(&ideal, format).map_err(|e| match e {
-                Error::TapOutOfRange { index, .. } => {
+                DesignError::TapOutOfRange { index, .. } => {
                     let (line, column) = fields.get(index).map_or((1, 1), |f| (f.line, f.column));
                     Failure::at(
                         path,

@@ -2,7 +2,7 @@
 //! equiripple) → the measured figures and the headroom proof; `emit` also writes the taps as a
 //! Rust source file.
 
-use crate::design::{EquirippleDesign, MAX_EQUIRIPPLE_TAPS, Measured};
+use crate::design::{DesignError, EquirippleDesign, MAX_EQUIRIPPLE_TAPS, Measured};
 use crate::headroom::{ErrorBound, Headroom, InputRange};
 use crate::tool::failure::Failure;
 use crate::tool::input::spec::{Chosen, Method};
@@ -57,12 +57,12 @@ pub enum Taps {
     Float(Vec<f32>),
 }
 
-fn library(e: Error) -> Failure {
-    match e {
-        Error::OutputLength { expected, .. } => Failure::plain(format!(
+fn library(e: impl Into<DesignError>) -> Failure {
+    match e.into() {
+        DesignError::Filter(Error::OutputLength { expected, .. }) => Failure::plain(format!(
             "design: the spec needs {expected} taps, more than the tool's {MAX_TAPS}: expected a wider transition band or less attenuation"
         )),
-        Error::SpecNotMet { taps, .. } => Failure::plain(format!(
+        DesignError::SpecNotMet { taps, .. } => Failure::plain(format!(
             "design: no Kaiser design of up to {taps} taps meets the spec in this format: expected a coarser spec or a wider format"
         )),
         other => Failure::plain(format!("design: {other}")),
@@ -169,9 +169,9 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
     // With a length given: that one design, whatever it measures (the report says if it
     // misses). Otherwise the library's search: the shortest that meets the spec, and for fixed
     // point the shortest whose quantized taps meet it.
-    let given = |e: Error| match (chosen.length, e) {
+    let given = |e: DesignError| match (chosen.length, e) {
         (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
-        (None, Error::SpecNotMet { taps }) => Failure::plain(format!(
+        (None, DesignError::SpecNotMet { taps }) => Failure::plain(format!(
             "design: no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
             chosen.format.name()
         )),
