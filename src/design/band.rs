@@ -140,10 +140,10 @@ impl<R: Real> Band<R> {
 /// // An even-length highpass would have a zero at half the sample rate:
 /// let mut even = [0.0f32; 30];
 /// let r = windowed_sinc(Band::Highpass { cutoff_hz: 100.0 }, 1000.0, Window::Hann, &mut even);
-/// assert!(matches!(r, Err(DesignError::OddLengthRequired { found: 30, .. })));
+/// assert!(matches!(r, Err(tapline::design::DesignError::OddLengthRequired { found: 30, .. })));
 /// // An edge at half the sample rate is outside (0, fs/2):
 /// let r = windowed_sinc(Band::Lowpass { cutoff_hz: 500.0 }, 1000.0, Window::Hann, &mut h);
-/// assert_eq!(r, Err(DesignError::FrequencyOutOfRange));
+/// assert_eq!(r, Err(tapline::design::DesignError::FrequencyOutOfRange));
 /// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn windowed_sinc<R: Real>(

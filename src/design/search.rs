@@ -289,7 +289,7 @@ impl Spec<f64> {
     /// assert!(d.measured.meets() && d.taps.len() == d.float.design.taps.len());
     /// // Edge case: 16-bit taps cannot reach 100 dB, whatever the margin.
     /// let deep = Spec { stopband_attenuation_db: 100.0, ..spec };
-    /// assert!(matches!(deep.equiripple_fixed::<i16>(None), Err(DesignError::SpecNotMet { .. })));
+    /// assert!(matches!(deep.equiripple_fixed::<i16>(None), Err(tapline::design::DesignError::SpecNotMet { .. })));
     /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
     pub fn equiripple_fixed<T: FixedPoint>(

@@ -70,7 +70,7 @@ pub enum Shape<R> {
 /// assert!(design.measured.meets() && design.taps.len() <= 128);
 /// // Edge case: a stopband edge at half the sample rate is outside (0, fs/2).
 /// let bad = Spec { shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 500.0 }, ..spec };
-/// assert_eq!(bad.kaiser::<128>().err(), Some(DesignError::FrequencyOutOfRange));
+/// assert_eq!(bad.kaiser::<128>().err(), Some(tapline::design::DesignError::FrequencyOutOfRange));
 /// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -528,7 +528,7 @@ impl<R: Real> Spec<R> {
     ///     stopband_attenuation_db: 100.0,
     /// };
     /// let q15 = deep.kaiser_fixed::<i16, 512>();
-    /// assert!(matches!(q15, Err(DesignError::SpecNotMet { .. })));
+    /// assert!(matches!(q15, Err(tapline::design::DesignError::SpecNotMet { .. })));
     /// assert!(deep.kaiser_fixed::<i32, 512>()?.measured.meets());
     /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
