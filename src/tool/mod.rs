@@ -10,7 +10,7 @@
 //! | module | holds |
 //! |---|---|
 //! | [`input`] | readers: the spec (flags or TOML), tap tables, captures |
-//! | [`jobs`] | one module per command: design and emit, check, replay, plot, prepare |
+//! | `jobs` | one module per command: design and emit, check, replay, plot, prepare |
 //! | [`output`] | the report (text, JSON, exit status), atomic file writing, the progress bar |
 //! | [`args`] | the command line and the dispatch of one command to its job |
 //! | [`failure`] | the tool's failure type: one line, exit status 2 |

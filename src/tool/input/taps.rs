@@ -150,6 +150,11 @@ impl Codes {
         }
     }
 
+    /// Whether there are no taps (a table reader never returns such a table).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
     /// The library's headroom analysis of the codes for inputs in `input`.
     pub fn headroom(&self, input: InputRange) -> Headroom {
         match self {
