@@ -81,22 +81,11 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
     match chosen.format {
         Format::F32 => {
             let float = spec.kaiser::<MAX_TAPS>().map_err(library)?;
-            let taps: Vec<f32> = float.taps.iter().map(|&h| h as f32).collect();
-            let measured = spec.measure(&taps).map_err(library)?;
-            Ok(Designed {
-                ideal: float.taps.to_vec(),
-                float_measured: float.measured,
-                how: How::Window {
-                    estimated_len: float.estimated_len,
-                    beta: float.beta,
-                },
-                margin_db: 0.0,
-                taps: Taps::Float(taps),
-                measured,
-                proof: None,
-                input: None,
-                chosen,
-            })
+            let how = How::Window {
+                estimated_len: float.estimated_len,
+                beta: float.beta,
+            };
+            single(chosen, float.taps.to_vec(), float.measured, how)
         }
         Format::Q15 | Format::Q31 => {
             let (float, codes, measured, margin_db) = if chosen.format == Format::Q15 {
@@ -131,6 +120,28 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
             )
         }
     }
+}
+
+/// f32 taps: the float design rounded to f32 and measured; no headroom to prove.
+fn single(
+    chosen: Chosen,
+    ideal: Vec<f64>,
+    float_measured: Measured<f64>,
+    how: How,
+) -> Result<Designed, Failure> {
+    let taps: Vec<f32> = ideal.iter().map(|&h| h as f32).collect();
+    let measured = chosen.spec.measure(&taps).map_err(library)?;
+    Ok(Designed {
+        ideal,
+        float_measured,
+        how,
+        margin_db: 0.0,
+        taps: Taps::Float(taps),
+        measured,
+        proof: None,
+        input: None,
+        chosen,
+    })
 }
 
 /// The headroom proof and error bound of fixed-point taps, and the finished design.
@@ -189,44 +200,27 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
                 None => spec.shortest_equiripple(),
             }
             .map_err(given)?;
-            let taps: Vec<f32> = float.design.taps.iter().map(|&h| h as f32).collect();
-            let measured = spec.measure(&taps).map_err(library)?;
-            Ok(Designed {
-                how: how(&float),
-                float_measured: float.measured,
-                ideal: float.design.taps,
-                margin_db: 0.0,
-                taps: Taps::Float(taps),
+            let how = how(&float);
+            single(chosen, float.design.taps, float.measured, how)
+        }
+        Format::Q15 | Format::Q31 => {
+            // The float taps and figures, the codes and the quantized figures.
+            let (float, margin_db, codes, measured) = if chosen.format == Format::Q15 {
+                let d = spec.equiripple_fixed::<i16>(chosen.length).map_err(given)?;
+                (d.float, d.margin_db, Codes::Q15(d.taps), d.measured)
+            } else {
+                let d = spec.equiripple_fixed::<i32>(chosen.length).map_err(given)?;
+                (d.float, d.margin_db, Codes::Q31(d.taps), d.measured)
+            };
+            let how = how(&float);
+            fixed(
+                chosen,
+                float.design.taps,
+                float.measured,
+                how,
+                margin_db,
+                codes,
                 measured,
-                proof: None,
-                input: None,
-                chosen,
-            })
-        }
-        Format::Q15 => {
-            let d = spec.equiripple_fixed::<i16>(chosen.length).map_err(given)?;
-            let how = how(&d.float);
-            fixed(
-                chosen,
-                d.float.design.taps,
-                d.float.measured,
-                how,
-                d.margin_db,
-                Codes::Q15(d.taps),
-                d.measured,
-            )
-        }
-        Format::Q31 => {
-            let d = spec.equiripple_fixed::<i32>(chosen.length).map_err(given)?;
-            let how = how(&d.float);
-            fixed(
-                chosen,
-                d.float.design.taps,
-                d.float.measured,
-                how,
-                d.margin_db,
-                Codes::Q31(d.taps),
-                d.measured,
             )
         }
     }

@@ -353,17 +353,16 @@ where
     S::Acc: Into<i128>,
     W: RuntimeChecked,
 {
-    let args = (codes, ideal, rounding);
     match padded_len(codes.len()) {
-        Some(16) => drive_fixed::<S, W, 16>(args.0, args.1, args.2, traces, feed),
-        Some(32) => drive_fixed::<S, W, 32>(args.0, args.1, args.2, traces, feed),
-        Some(64) => drive_fixed::<S, W, 64>(args.0, args.1, args.2, traces, feed),
-        Some(128) => drive_fixed::<S, W, 128>(args.0, args.1, args.2, traces, feed),
-        Some(256) => drive_fixed::<S, W, 256>(args.0, args.1, args.2, traces, feed),
-        Some(512) => drive_fixed::<S, W, 512>(args.0, args.1, args.2, traces, feed),
-        Some(1024) => drive_fixed::<S, W, 1024>(args.0, args.1, args.2, traces, feed),
-        Some(2048) => drive_fixed::<S, W, 2048>(args.0, args.1, args.2, traces, feed),
-        Some(4096) => drive_fixed::<S, W, 4096>(args.0, args.1, args.2, traces, feed),
+        Some(16) => drive_fixed::<S, W, 16>(codes, ideal, rounding, traces, feed),
+        Some(32) => drive_fixed::<S, W, 32>(codes, ideal, rounding, traces, feed),
+        Some(64) => drive_fixed::<S, W, 64>(codes, ideal, rounding, traces, feed),
+        Some(128) => drive_fixed::<S, W, 128>(codes, ideal, rounding, traces, feed),
+        Some(256) => drive_fixed::<S, W, 256>(codes, ideal, rounding, traces, feed),
+        Some(512) => drive_fixed::<S, W, 512>(codes, ideal, rounding, traces, feed),
+        Some(1024) => drive_fixed::<S, W, 1024>(codes, ideal, rounding, traces, feed),
+        Some(2048) => drive_fixed::<S, W, 2048>(codes, ideal, rounding, traces, feed),
+        Some(4096) => drive_fixed::<S, W, 4096>(codes, ideal, rounding, traces, feed),
         _ => Err(too_long(codes.len())),
     }
 }
