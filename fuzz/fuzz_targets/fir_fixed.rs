@@ -5,6 +5,7 @@
 
 // tests/common, through the tapline-model crate (fuzz/model).
 use tapline_model as common;
+use tapline_model::with_tap_count;
 
 use arbitrary::Arbitrary;
 use fixed::types::{I1F15, I1F31, I4F12, I8F24};
