@@ -19,7 +19,7 @@ mod symmetry;
 mod trace;
 
 pub use analysis::{AccWidth, Extreme, Headroom};
-pub use deviation::{Deviation, ErrorBound, measure_deviation};
+pub use deviation::{Deviation, ErrorBound, f32_error_bound, gamma, measure_deviation};
 pub(crate) use proof::proof_holds;
 pub use proof::{Acc32, ProvenTaps};
 pub use range::{Align, InputRange};
