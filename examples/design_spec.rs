@@ -6,12 +6,12 @@
 //! The design runs in `f32` — the `no_std` path a firmware build would use — and is checked
 //! against the same design in `f64`. Run: `cargo run --release --example design_spec`.
 
-use tapline::Error;
+use tapline::design::DesignError;
 use tapline::design::{
     Shape, Spec, dc_gain, group_delay_at, half_power_frequency, response_at, windowed_sinc,
 };
 
-fn main() -> Result<(), Error> {
+fn main() -> Result<(), DesignError> {
     let spec = Spec {
         sample_rate_hz: 1000.0f32,
         shape: Shape::Lowpass {

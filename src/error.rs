@@ -1,5 +1,6 @@
-//! The one error type of the crate: configuration mistakes, reported once, at the call that
-//! makes them.
+//! The error of a filter's configuration: what constructors and block calls return, reported
+//! once, at the call that makes the mistake. Designing taps has its own error,
+//! `design::DesignError`; the host tool has its own failure type.
 
 use core::fmt;
 
@@ -63,68 +64,6 @@ pub enum Error {
     },
     /// A passband edge outside (0, ½) cycles per sample, or one too narrow for the design.
     InvalidPassband,
-    /// A frequency is outside its allowed range: band edges must lie strictly between 0 and half
-    /// the sample rate, measured bands within 0..=fs/2, and the sample rate must be positive and
-    /// finite.
-    FrequencyOutOfRange,
-    /// Band edges are not strictly increasing (a passband edge must lie below its stopband
-    /// edge for a lowpass, a band's low edge below its high edge, bands in order).
-    EdgesNotIncreasing,
-    /// The band type needs an odd number of taps: an even-length symmetric filter has a forced
-    /// zero at half the sample rate, so it cannot pass it (highpass, bandstop).
-    #[non_exhaustive]
-    OddLengthRequired {
-        /// The (even) length that was asked for.
-        found: usize,
-    },
-    /// Too few taps or points for the design.
-    #[non_exhaustive]
-    TooShort {
-        /// The smallest length the design accepts.
-        minimum: usize,
-        /// The length that was passed.
-        found: usize,
-    },
-    /// A Kaiser window's β is negative, not finite, or above
-    /// [`MAX_KAISER_BETA`](crate::design::MAX_KAISER_BETA).
-    KaiserBetaOutOfRange,
-    /// An attenuation or ripple in dB is not a positive finite number (or an attenuation is
-    /// above [`MAX_ATTENUATION_DB`](crate::design::MAX_ATTENUATION_DB)).
-    InvalidDecibels,
-    /// A transition width is not positive and finite, or is so narrow that the estimated
-    /// length exceeds [`MAX_DESIGN_TAPS`](crate::design::MAX_DESIGN_TAPS).
-    InvalidTransition,
-    /// A Savitzky–Golay polynomial order is not below the window length, or is above
-    /// [`MAX_POLYNOMIAL_ORDER`](crate::design::MAX_POLYNOMIAL_ORDER), or a derivative was asked of
-    /// a polynomial of order 0.
-    #[non_exhaustive]
-    PolynomialOrder {
-        /// The order that was asked for.
-        order: usize,
-        /// The window length.
-        length: usize,
-    },
-    /// A band's desired gain is not finite or its weight is not a positive finite number.
-    InvalidBandGain,
-    /// An iterative design did not settle within its iteration cap (or its arithmetic broke
-    /// down); the result is not returned. Try another length, weights or band edges.
-    #[non_exhaustive]
-    NoConvergence {
-        /// Iterations run before giving up.
-        iterations: u32,
-    },
-    /// A design measured against its spec still misses it after the allowed lengthening.
-    #[non_exhaustive]
-    SpecNotMet {
-        /// The longest length tried.
-        taps: usize,
-    },
-    /// A tap is not finite or lies outside the fixed-point format by more than one LSB.
-    #[non_exhaustive]
-    TapOutOfRange {
-        /// Position of the first such tap.
-        index: usize,
-    },
     /// A filter was given no taps; it needs at least one.
     NoTaps,
     /// More taps than the filter's capacity (its history length, the const `N`).
@@ -192,63 +131,6 @@ impl fmt::Display for Error {
             Error::InvalidPassband => f.write_str(
                 "the passband edge must lie strictly between 0 and 0.5 cycles per sample \
                  and leave room for the design",
-            ),
-            Error::FrequencyOutOfRange => f.write_str(
-                "frequency out of range: band edges must lie strictly between 0 and half the \
-                 sample rate, measured bands within 0..=fs/2, and the sample rate must be \
-                 positive and finite",
-            ),
-            Error::EdgesNotIncreasing => f.write_str(
-                "band edges must be strictly increasing (passband edge below stopband edge for \
-                 a lowpass, low edge below high edge, bands in order)",
-            ),
-            Error::OddLengthRequired { found } => write!(
-                f,
-                "{found} taps requested, but this band type passes half the sample rate and so \
-                 needs an odd number of taps"
-            ),
-            Error::TooShort { minimum, found } => write!(
-                f,
-                "{found} taps or points given, but this design needs at least {minimum}"
-            ),
-            Error::KaiserBetaOutOfRange => write!(
-                f,
-                "Kaiser beta must be finite and within 0..={}",
-                crate::design::MAX_KAISER_BETA
-            ),
-            Error::InvalidDecibels => write!(
-                f,
-                "attenuation and ripple must be positive finite dB values (attenuation at most \
-                 {} dB)",
-                crate::design::MAX_ATTENUATION_DB
-            ),
-            Error::InvalidTransition => write!(
-                f,
-                "the transition width must be positive and finite and give at most {} taps",
-                crate::design::MAX_DESIGN_TAPS
-            ),
-            Error::PolynomialOrder { order, length } => write!(
-                f,
-                "polynomial order {order} with a {length}-point window: the order must be below \
-                 the window length and at most {}, and at least 1 for a derivative",
-                crate::design::MAX_POLYNOMIAL_ORDER
-            ),
-            Error::InvalidBandGain => f.write_str(
-                "each band needs a finite desired gain and a positive finite weight",
-            ),
-            Error::NoConvergence { iterations } => write!(
-                f,
-                "the design did not converge within {iterations} iterations: try another \
-                 length, weights or band edges"
-            ),
-            Error::SpecNotMet { taps } => write!(
-                f,
-                "the design still misses its spec at {taps} taps: widen the transition band or \
-                 relax the ripple or attenuation"
-            ),
-            Error::TapOutOfRange { index } => write!(
-                f,
-                "tap {index} is not finite or lies outside the fixed-point format's range"
             ),
             Error::NoTaps => f.write_str("a filter needs at least one tap; none were given"),
             Error::TooManyTaps { capacity, found } => write!(

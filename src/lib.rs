@@ -19,7 +19,12 @@
 //! * [`filter`] — streaming filters ([`Fir`]), per sample or per block.
 //! * [`mod@convolve`] — finite convolution and cross-correlation of two slices.
 //! * [`design`] — from a spec to taps (windows, Kaiser, windowed sinc, Parks–McClellan with
-//!   `std`, Savitzky–Golay), quantization to Q15/Q31/`fixed`, and the measured response.
+//!   `std`, Savitzky–Golay), quantization to Q15/Q31/`fixed`, the searches for the shortest
+//!   design that meets a spec after quantization, and the one verification against a spec.
+//! * [`headroom`] — the exact headroom analysis and verdict, and the error bounds (fixed point,
+//!   and `f32` by Higham's γ_N) against float64.
+//! * `tool` (feature `cli` only) — the host tool's internals: input readers, one job per
+//!   command, report and file output. The `tapline` binary is a thin `main` over it.
 //!
 //! ## Numeric contract
 //!
@@ -79,6 +84,9 @@ pub mod headroom;
 pub mod kernel;
 pub mod num;
 pub mod ring;
+// The host tool's internals (its module page says what they are): not for firmware.
+#[cfg(feature = "cli")]
+pub mod tool;
 
 pub use convolve::{Span, convolve, correlate};
 pub use error::Error;

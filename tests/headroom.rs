@@ -8,7 +8,7 @@ use fixed::types::{I1F15, I4F12};
 use proptest::prelude::*;
 use tapline::headroom::{
     Acc32, AccTrace, AccWidth, Align, ErrorBound, Extreme, Headroom, InputRange, ProvenTaps,
-    measure_deviation,
+    f32_error_bound, measure_deviation,
 };
 use tapline::num::{Acc128, FixedPoint};
 use tapline::{Error, Fir, MulAcc, Rounding, Sample};
@@ -507,4 +507,88 @@ fn report_prints_its_verdict() {
     assert!(text.contains("sum |h| = 1.000000"), "{text}");
     let loud = Headroom::q15(&[32767, 32767], InputRange::FULL).to_string();
     assert!(loud.contains("CAN SATURATE"), "{loud}");
+}
+
+/// The f32 error bound holds for a real f32 filter: full-scale alternating and random inputs
+/// through `Fir<f32>` stay within `f32_error_bound` of the test's own float64 filter, and the
+/// bound equals the four terms as the test writes them from Higham's γ_n (N. J. Higham,
+/// *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM 2002, §3.1).
+#[test]
+fn f32_bound_holds_and_matches_its_terms() {
+    let ideal: Vec<f64> = (0..31)
+        .map(|k| {
+            let t = k as f64 - 15.0;
+            if t == 0.0 {
+                0.3
+            } else {
+                (0.3 * std::f64::consts::PI * t).sin() / (std::f64::consts::PI * t)
+            }
+        })
+        .collect();
+    let taps32: Vec<f32> = ideal.iter().map(|&h| h as f32).collect();
+    let mut taps = [0.0f32; 31];
+    taps.copy_from_slice(&taps32);
+    let largest = 2047.5;
+    let bound = f32_error_bound(&ideal, &taps32, largest);
+    let x32 = largest * (1.0 + U_F32);
+    let own = ideal
+        .iter()
+        .zip(&taps32)
+        .map(|(h, t)| (f64::from(*t) - h).abs() * x32 + h.abs() * U_F32 * largest)
+        .sum::<f64>()
+        + gamma(31, U_F32) * taps32.iter().map(|t| f64::from(*t).abs()).sum::<f64>() * x32
+        + gamma(31, U_F64) * ideal.iter().map(|h| h.abs()).sum::<f64>() * largest;
+    assert!((bound - own).abs() <= 1e-12 * own, "{bound} vs {own}");
+    assert_eq!(tapline::headroom::gamma(31, U_F32), gamma(31, U_F32));
+    let mut seed = 7u64;
+    let x: Vec<f64> = (0..4000)
+        .map(|i| {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            if i < 1000 {
+                if i % 2 == 0 { largest } else { -largest }
+            } else {
+                ((seed >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0) * largest
+            }
+        })
+        .collect();
+    let reference = fir_f64(&ideal, &x);
+    let mut fir = Fir::<f32, 31>::new(&taps).unwrap();
+    let mut worst = 0.0f64;
+    for (xi, r) in x.iter().zip(&reference) {
+        let y = f64::from(fir.push(*xi as f32));
+        worst = worst.max((y - r).abs());
+    }
+    assert!(
+        worst > 0.0 && worst <= bound,
+        "worst {worst} vs bound {bound}"
+    );
+}
+
+/// The headroom verdict: safe exactly when the exact model's worst-case sums fit 64 bits and
+/// the rounded output stays in the word, for every rounding mode. Q15 taps summing to just
+/// under 1 are safe; taps summing to 1 + 2⁻¹⁵ let a full-scale input exceed the word (a fact
+/// of two's complement: −32768·(1 + 2⁻¹⁵) = −32769 lies below the word's −32768).
+#[test]
+fn headroom_verdict_follows_the_exact_model() {
+    for (taps, safe) in [
+        (vec![8192i16, 16383, 8192], true),
+        (vec![8192i16, 16385, 8192], false),
+        (vec![-32768i16, 32767], false),
+    ] {
+        let h = Headroom::q15(&taps, InputRange::FULL);
+        let wide: Vec<i64> = taps.iter().map(|&t| i64::from(t)).collect();
+        for mode in [Rounding::HalfUp, Rounding::Truncate, Rounding::HalfEven] {
+            let mut fits = true;
+            for extreme in [Extreme::High, Extreme::Low] {
+                let worst: Vec<i64> = h.worst_case_input(&taps, extreme).collect();
+                let acc = sum_at_end(&wide, &worst);
+                let (_, clamped) = finish_exact(acc, 15, 16, mode);
+                fits &= !clamped && i64::try_from(acc).is_ok();
+            }
+            assert_eq!(h.is_safe(mode), fits, "{taps:?} {mode:?}");
+            assert_eq!(h.is_safe(mode), safe, "{taps:?} {mode:?}");
+        }
+    }
 }

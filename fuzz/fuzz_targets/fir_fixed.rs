@@ -3,8 +3,9 @@
 //! the proptest properties use).
 #![no_main]
 
-#[path = "../../tests/common/mod.rs"]
-mod common;
+// tests/common, through the tapline-model crate (fuzz/model).
+use tapline_model as common;
+use tapline_model::with_tap_count;
 
 use arbitrary::Arbitrary;
 use fixed::types::{I1F15, I1F31, I4F12, I8F24};

@@ -3,8 +3,8 @@
 //! stay inside them, and no public entry point may panic on any argument.
 #![no_main]
 
-#[path = "../../tests/common/mod.rs"]
-mod common;
+// tests/common, through the tapline-model crate (fuzz/model).
+use tapline_model as common;
 
 use arbitrary::Arbitrary;
 use libfuzzer_sys::fuzz_target;

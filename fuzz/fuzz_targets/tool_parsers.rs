@@ -1,24 +1,13 @@
-//! Arbitrary bytes through every parser of the host tool (`tapline`, feature `cli`): the spec
+//! Arbitrary bytes through every parser of the host tool (`tapline::tool::input`, feature `cli`): the spec
 //! TOML reader, the text/CSV table reader and the tap-table reader in every format and
 //! notation. Each must return a value or a one-line error — never panic, never a multi-line
 //! message.
 #![no_main]
 
-#[path = "../../src/bin/tapline/failure.rs"]
-#[allow(dead_code)]
-mod failure;
-#[path = "../../src/bin/tapline/spec.rs"]
-#[allow(dead_code)]
-mod spec;
-#[path = "../../src/bin/tapline/table.rs"]
-#[allow(dead_code)]
-mod table;
-#[path = "../../src/bin/tapline/taps.rs"]
-#[allow(dead_code)]
-mod taps;
-
 use libfuzzer_sys::fuzz_target;
 use std::path::PathBuf;
+use tapline::tool::failure;
+use tapline::tool::input::{spec, table, taps};
 
 fn one_line<T>(result: Result<T, failure::Failure>) {
     if let Err(e) = result {

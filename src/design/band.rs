@@ -1,8 +1,8 @@
 //! Windowed-sinc band designs: the ideal band's impulse response, truncated to N taps and
 //! tapered by a window.
 
+use super::DesignError;
 use super::{Real, Window, inside, nyquist};
-use crate::Error;
 
 /// An ideal band, edges in Hz (the −6 dB points of a windowed-sinc design).
 ///
@@ -41,10 +41,10 @@ pub enum Band<R> {
 impl<R: Real> Band<R> {
     /// Checks the edges and the length; returns the edges as fractions of the sample rate
     /// (low, high; low = 0 for one-edge bands) and the normalisation frequency.
-    fn normalised(self, sample_rate_hz: R, len: usize) -> Result<(R, R, R), Error> {
+    fn normalised(self, sample_rate_hz: R, len: usize) -> Result<(R, R, R), DesignError> {
         let half = nyquist(sample_rate_hz)?;
         if len == 0 {
-            return Err(Error::TooShort {
+            return Err(DesignError::TooShort {
                 minimum: 1,
                 found: 0,
             });
@@ -53,15 +53,15 @@ impl<R: Real> Band<R> {
             if len % 2 == 1 {
                 Ok(())
             } else {
-                Err(Error::OddLengthRequired { found: len })
+                Err(DesignError::OddLengthRequired { found: len })
             }
         };
-        let pair = |lo: R, hi: R| -> Result<(R, R), Error> {
+        let pair = |lo: R, hi: R| -> Result<(R, R), DesignError> {
             let (lo, hi) = (inside(lo, half)?, inside(hi, half)?);
             if lo < hi {
                 Ok((lo / sample_rate_hz, hi / sample_rate_hz))
             } else {
-                Err(Error::EdgesNotIncreasing)
+                Err(DesignError::EdgesNotIncreasing)
             }
         };
         let half_rate = R::from_f64(0.5); // half the sample rate, in cycles per sample
@@ -126,11 +126,11 @@ impl<R: Real> Band<R> {
 /// (rectangle ≈ 21 dB, Hann ≈ 44 dB, Hamming ≈ 53 dB, Blackman ≈ 74 dB; Kaiser by β).
 ///
 /// # Errors
-/// [`Error::TooShort`] for empty `taps`, and for 2 taps with a window that is zero at both
-/// ends (triangular, Hann, Blackman: nothing is left); [`Error::FrequencyOutOfRange`] for an edge outside
-/// (0, fs/2) or a bad sample rate; [`Error::EdgesNotIncreasing`];
-/// [`Error::OddLengthRequired`] for an even-length highpass or bandstop;
-/// [`Error::KaiserBetaOutOfRange`].
+/// [`DesignError::TooShort`] for empty `taps`, and for 2 taps with a window that is zero at both
+/// ends (triangular, Hann, Blackman: nothing is left); [`DesignError::FrequencyOutOfRange`] for an edge outside
+/// (0, fs/2) or a bad sample rate; [`DesignError::EdgesNotIncreasing`];
+/// [`DesignError::OddLengthRequired`] for an even-length highpass or bandstop;
+/// [`DesignError::KaiserBetaOutOfRange`].
 ///
 /// ```
 /// use tapline::design::{Band, Window, windowed_sinc, dc_gain};
@@ -140,18 +140,18 @@ impl<R: Real> Band<R> {
 /// // An even-length highpass would have a zero at half the sample rate:
 /// let mut even = [0.0f32; 30];
 /// let r = windowed_sinc(Band::Highpass { cutoff_hz: 100.0 }, 1000.0, Window::Hann, &mut even);
-/// assert!(matches!(r, Err(tapline::Error::OddLengthRequired { found: 30, .. })));
+/// assert!(matches!(r, Err(tapline::design::DesignError::OddLengthRequired { found: 30, .. })));
 /// // An edge at half the sample rate is outside (0, fs/2):
 /// let r = windowed_sinc(Band::Lowpass { cutoff_hz: 500.0 }, 1000.0, Window::Hann, &mut h);
-/// assert_eq!(r, Err(tapline::Error::FrequencyOutOfRange));
-/// # Ok::<(), tapline::Error>(())
+/// assert_eq!(r, Err(tapline::design::DesignError::FrequencyOutOfRange));
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn windowed_sinc<R: Real>(
     band: Band<R>,
     sample_rate_hz: R,
     window: Window<R>,
     taps: &mut [R],
-) -> Result<(), Error> {
+) -> Result<(), DesignError> {
     let len = taps.len();
     let (lo, hi, reference) = band.normalised(sample_rate_hz, len)?;
     window.fill(taps)?;
@@ -168,7 +168,7 @@ pub fn windowed_sinc<R: Real>(
     // A gain of 0 at the reference only happens when the window is zero everywhere: two taps
     // of a window that is zero at both ends (triangular, Hann, Blackman).
     if !(gain.abs() > R::ZERO) || !gain.is_finite() {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 3,
             found: len,
         });

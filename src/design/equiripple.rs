@@ -14,8 +14,8 @@
 //! The taps come from A sampled at N equally spaced frequencies (an exact inverse DFT for
 //! length N).
 
+use super::DesignError;
 use super::real::Real;
-use crate::Error;
 use std::vec::Vec;
 
 /// One band of an equiripple spec: edges in Hz (0 ≤ low < high ≤ fs/2), the desired gain over
@@ -54,6 +54,11 @@ pub struct Equiripple {
 /// cosine terms), 16 as in Parks & McClellan's program.
 pub const EQUIRIPPLE_GRID_DENSITY: usize = 16;
 
+/// The longest filter [`equiripple`] designs; a longer length is refused with
+/// [`DesignError::InvalidTransition`]. The exchange's work per iteration grows with the square of
+/// the length, so the cap keeps a host-side design within seconds.
+pub const MAX_EQUIRIPPLE_TAPS: usize = 1024;
+
 /// The iteration cap [`equiripple`] uses.
 pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 
@@ -67,9 +72,9 @@ pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 /// the final taps between grid points as well, by [`gain_range`](super::gain_range).
 ///
 /// # Errors
-/// [`Error::TooShort`] for fewer than 3 taps or no band; [`Error::FrequencyOutOfRange`];
-/// [`Error::EdgesNotIncreasing`] for overlapping or unordered bands; [`Error::InvalidBandGain`];
-/// [`Error::InvalidTransition`] for more than 1024 taps; [`Error::NoConvergence`] when the
+/// [`DesignError::TooShort`] for fewer than 3 taps or no band; [`DesignError::FrequencyOutOfRange`];
+/// [`DesignError::EdgesNotIncreasing`] for overlapping or unordered bands; [`DesignError::InvalidBandGain`];
+/// [`DesignError::InvalidTransition`] for more than [`MAX_EQUIRIPPLE_TAPS`] taps; [`DesignError::NoConvergence`] when the
 /// exchange does not settle within the cap, loses its alternation, or its arithmetic
 /// overflows. It never loops without bound.
 ///
@@ -86,13 +91,13 @@ pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 /// // Edge case: bands that overlap are refused.
 /// let overlap = [bands[0], EquirippleBand { low_hz: 100.0, ..bands[1] }];
 /// assert!(equiripple(12, &overlap, 1000.0).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn equiripple(
     len: usize,
     bands: &[EquirippleBand],
     sample_rate_hz: f64,
-) -> Result<Equiripple, Error> {
+) -> Result<Equiripple, DesignError> {
     equiripple_with(
         len,
         bands,
@@ -105,38 +110,38 @@ pub fn equiripple(
 /// [`equiripple`] with a chosen grid density (≥ 1) and iteration cap (≥ 1).
 ///
 /// # Errors
-/// As [`equiripple`]; [`Error::TooShort`] for a density or cap of 0.
+/// As [`equiripple`]; [`DesignError::TooShort`] for a density or cap of 0.
 pub fn equiripple_with(
     len: usize,
     bands: &[EquirippleBand],
     sample_rate_hz: f64,
     grid_density: usize,
     max_iterations: u32,
-) -> Result<Equiripple, Error> {
+) -> Result<Equiripple, DesignError> {
     if len < 3 || bands.is_empty() || grid_density == 0 || max_iterations == 0 {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 3,
             found: len,
         });
     }
-    if len > 1024 {
-        return Err(Error::InvalidTransition);
+    if len > MAX_EQUIRIPPLE_TAPS {
+        return Err(DesignError::InvalidTransition);
     }
     if !(sample_rate_hz.is_finite() && sample_rate_hz > 0.0) {
-        return Err(Error::FrequencyOutOfRange);
+        return Err(DesignError::FrequencyOutOfRange);
     }
     let half = sample_rate_hz / 2.0;
     let mut previous_high = f64::NEG_INFINITY;
     for b in bands {
         if !(b.low_hz >= 0.0 && b.high_hz <= half && b.low_hz.is_finite() && b.high_hz.is_finite())
         {
-            return Err(Error::FrequencyOutOfRange);
+            return Err(DesignError::FrequencyOutOfRange);
         }
         if !(b.low_hz < b.high_hz && b.low_hz >= previous_high) {
-            return Err(Error::EdgesNotIncreasing);
+            return Err(DesignError::EdgesNotIncreasing);
         }
         if !(b.gain.is_finite() && b.weight.is_finite() && b.weight > 0.0) {
-            return Err(Error::InvalidBandGain);
+            return Err(DesignError::InvalidBandGain);
         }
         previous_high = b.high_hz;
     }
@@ -144,7 +149,7 @@ pub fn equiripple_with(
     let r = if odd { len.div_ceil(2) } else { len / 2 };
     let grid = Grid::new(bands, sample_rate_hz, r, grid_density, odd);
     if grid.nu.len() < r + 1 {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: r + 1,
             found: grid.nu.len(),
         });
@@ -187,7 +192,7 @@ pub fn equiripple_with(
     }
 
     if taps.iter().any(|t| !t.is_finite()) {
-        return Err(Error::NoConvergence { iterations });
+        return Err(DesignError::NoConvergence { iterations });
     }
     // Achieved deviation per band, from the final taps: the refined extremes of |H| (|A| = |H|
     // for these symmetric taps), not just the design grid.
@@ -197,7 +202,7 @@ pub fn equiripple_with(
         band_deviation.push((g.max - b.gain).abs().max((b.gain - g.min).abs()));
     }
     if taps.iter().any(|t| !t.is_finite()) {
-        return Err(Error::NoConvergence { iterations });
+        return Err(DesignError::NoConvergence { iterations });
     }
     Ok(Equiripple {
         taps,
@@ -341,12 +346,12 @@ fn solve(grid: &Grid, ext: &[usize]) -> Option<Fit> {
 }
 
 /// The Remez exchange; returns the converged fit and the iterations used.
-fn exchange(grid: &Grid, r: usize, cap: u32) -> Result<(Fit, u32), Error> {
+fn exchange(grid: &Grid, r: usize, cap: u32) -> Result<(Fit, u32), DesignError> {
     let g = grid.nu.len();
     // Start from evenly spread trial frequencies over the grid.
     let mut ext: Vec<usize> = (0..=r).map(|i| i * (g - 1) / r).collect();
     for it in 1..=cap {
-        let fail = Error::NoConvergence { iterations: it };
+        let fail = DesignError::NoConvergence { iterations: it };
         let fit = solve(grid, &ext).ok_or(fail)?;
         let err: Vec<f64> = (0..g)
             .map(|i| {
@@ -372,7 +377,7 @@ fn exchange(grid: &Grid, r: usize, cap: u32) -> Result<(Fit, u32), Error> {
             return Ok((fit, it));
         }
     }
-    Err(Error::NoConvergence { iterations: cap })
+    Err(DesignError::NoConvergence { iterations: cap })
 }
 
 /// The new trial set: local extremes of the error (band ends included), alternating in sign,

@@ -16,14 +16,14 @@
 //! first stopband lobe. [`Spec::kaiser`](super::Spec::kaiser) measures its result and
 //! lengthens it until it meets the spec.
 
+use super::DesignError;
 use super::{MAX_ATTENUATION_DB, MAX_DESIGN_TAPS, Real, nyquist};
-use crate::Error;
 
-fn check_db<R: Real>(a: R) -> Result<R, Error> {
+fn check_db<R: Real>(a: R) -> Result<R, DesignError> {
     if a.is_finite() && a > R::ZERO && a <= R::from_f64(MAX_ATTENUATION_DB) {
         Ok(a)
     } else {
-        Err(Error::InvalidDecibels)
+        Err(DesignError::InvalidDecibels)
     }
 }
 
@@ -33,16 +33,16 @@ fn check_db<R: Real>(a: R) -> Result<R, Error> {
 /// to 10⁻⁵); `f32` within 2·10⁻⁶ of `f64`.
 ///
 /// # Errors
-/// [`Error::InvalidDecibels`] unless 0 < `attenuation_db` ≤ [`MAX_ATTENUATION_DB`] and finite.
+/// [`DesignError::InvalidDecibels`] unless 0 < `attenuation_db` ≤ [`MAX_ATTENUATION_DB`] and finite.
 ///
 /// ```
 /// use tapline::design::kaiser::beta_for_attenuation;
 /// assert!((beta_for_attenuation(60.0f64)? - 5.65326).abs() < 1e-5);
 /// assert_eq!(beta_for_attenuation(20.0f32)?, 0.0); // below 21 dB: the rectangle
 /// assert!(beta_for_attenuation(-3.0f32).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
-pub fn beta_for_attenuation<R: Real>(attenuation_db: R) -> Result<R, Error> {
+pub fn beta_for_attenuation<R: Real>(attenuation_db: R) -> Result<R, DesignError> {
     let a = check_db(attenuation_db)?;
     let c = R::from_f64;
     Ok(if a > c(50.0) {
@@ -68,8 +68,8 @@ pub fn beta_for_attenuation<R: Real>(attenuation_db: R) -> Result<R, Error> {
 /// `f32` and `f64` when the quotient lies within 10⁻⁵ of an integer.
 ///
 /// # Errors
-/// [`Error::InvalidDecibels`]; [`Error::FrequencyOutOfRange`] for a bad sample rate;
-/// [`Error::InvalidTransition`] unless 0 < `transition_hz` ≤ fs/2 and the result is at most
+/// [`DesignError::InvalidDecibels`]; [`DesignError::FrequencyOutOfRange`] for a bad sample rate;
+/// [`DesignError::InvalidTransition`] unless 0 < `transition_hz` ≤ fs/2 and the result is at most
 /// [`MAX_DESIGN_TAPS`].
 ///
 /// ```
@@ -77,24 +77,24 @@ pub fn beta_for_attenuation<R: Real>(attenuation_db: R) -> Result<R, Error> {
 /// // 65 dB, transition 24 Hz at 1 kHz: 167 taps.
 /// assert_eq!(length_for_transition(65.0f64, 24.0, 1000.0)?, 167);
 /// assert!(length_for_transition(65.0f32, 0.0, 1000.0).is_err()); // no transition band
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn length_for_transition<R: Real>(
     attenuation_db: R,
     transition_hz: R,
     sample_rate_hz: R,
-) -> Result<usize, Error> {
+) -> Result<usize, DesignError> {
     let a = check_db(attenuation_db)?;
     let half = nyquist(sample_rate_hz)?;
     if !(transition_hz.is_finite() && transition_hz > R::ZERO && transition_hz <= half) {
-        return Err(Error::InvalidTransition);
+        return Err(DesignError::InvalidTransition);
     }
     let c = R::from_f64;
     let width = transition_hz / sample_rate_hz; // cycles per sample
     let order = (a - c(7.95)) / (c(2.285 * 2.0) * R::PI * width);
     let order = order.to_f64();
     if !(order < MAX_DESIGN_TAPS as f64) {
-        return Err(Error::InvalidTransition);
+        return Err(DesignError::InvalidTransition);
     }
     if order <= 0.0 {
         return Ok(1);
@@ -115,8 +115,8 @@ pub fn length_for_transition<R: Real>(
 /// **Accuracy:** exact to rounding.
 ///
 /// # Errors
-/// [`Error::FrequencyOutOfRange`] for a bad sample rate; [`Error::InvalidTransition`] unless
-/// 0 < `transition_hz` ≤ fs/2; [`Error::TooShort`] for 0 taps.
+/// [`DesignError::FrequencyOutOfRange`] for a bad sample rate; [`DesignError::InvalidTransition`] unless
+/// 0 < `transition_hz` ≤ fs/2; [`DesignError::TooShort`] for 0 taps.
 ///
 /// ```
 /// use tapline::design::kaiser::attenuation_for_length;
@@ -124,22 +124,22 @@ pub fn length_for_transition<R: Real>(
 /// let a = attenuation_for_length(211, 0.0375f64, 2.0)?;
 /// assert!((a - 64.48099630593983).abs() < 1e-9);
 /// assert!(attenuation_for_length(0, 1.0f32, 10.0).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn attenuation_for_length<R: Real>(
     taps: usize,
     transition_hz: R,
     sample_rate_hz: R,
-) -> Result<R, Error> {
+) -> Result<R, DesignError> {
     let half = nyquist(sample_rate_hz)?;
     if taps == 0 {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 1,
             found: 0,
         });
     }
     if !(transition_hz.is_finite() && transition_hz > R::ZERO && transition_hz <= half) {
-        return Err(Error::InvalidTransition);
+        return Err(DesignError::InvalidTransition);
     }
     let c = R::from_f64;
     Ok(

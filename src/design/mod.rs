@@ -14,11 +14,13 @@
 //!
 //! | file | holds |
 //! |---|---|
+//! | `error.rs` | [`DesignError`]: why a design could not be made |
 //! | `window.rs` | [`Window`]: rectangular, triangular, Hann, Hamming, Blackman, Kaiser(β) |
 //! | `kaiser.rs` | Kaiser's estimates: [`kaiser::beta_for_attenuation`], [`kaiser::length_for_transition`], [`kaiser::attenuation_for_length`] |
 //! | `band.rs` | windowed-sinc [`Band`] designs: [`windowed_sinc`] |
 //! | `spec.rs` | [`Spec`]: a band spec → a Kaiser design that meets it, and measurement against it |
 //! | `equiripple.rs` | Parks–McClellan (`equiripple`, `std` only) |
+//! | `search.rs` | the shortest equiripple design that meets a spec, before and after quantization (`std` only) |
 //! | `savitzky_golay.rs` | [`savitzky_golay_smoother`], [`savitzky_golay_slope`] |
 //! | `moving_average.rs` | [`moving_average`] (boxcar) |
 //! | `quantize.rs` | [`quantize`]: float taps → Q15/Q31/`fixed` with exact DC gain |
@@ -34,21 +36,25 @@
 mod band;
 #[cfg(feature = "std")]
 mod equiripple;
+mod error;
 pub mod kaiser;
 mod moving_average;
 mod quantize;
 mod real;
 mod response;
 mod savitzky_golay;
+#[cfg(feature = "std")]
+mod search;
 mod spec;
 mod window;
 
 pub use band::{Band, windowed_sinc};
 #[cfg(feature = "std")]
 pub use equiripple::{
-    EQUIRIPPLE_GRID_DENSITY, EQUIRIPPLE_MAX_ITERATIONS, Equiripple, EquirippleBand, equiripple,
-    equiripple_with,
+    EQUIRIPPLE_GRID_DENSITY, EQUIRIPPLE_MAX_ITERATIONS, Equiripple, EquirippleBand,
+    MAX_EQUIRIPPLE_TAPS, equiripple, equiripple_with,
 };
+pub use error::DesignError;
 pub use moving_average::moving_average;
 pub use quantize::{Quantized, quantize};
 pub use real::Real;
@@ -56,7 +62,9 @@ pub use response::{
     Complex, GainRange, dc_gain, gain_range, group_delay_at, half_power_frequency, response_at,
 };
 pub use savitzky_golay::{savitzky_golay_slope, savitzky_golay_smoother};
-pub use spec::{FixedDesign, KaiserDesign, Measured, Shape, Spec};
+#[cfg(feature = "std")]
+pub use search::{EquirippleDesign, FixedEquiripple};
+pub use spec::{FixedDesign, KaiserDesign, Measured, QUANTIZATION_MARGINS_DB, Shape, Spec};
 pub use window::Window;
 
 /// The largest Kaiser β accepted: I₀(40) ≈ 1.5·10¹⁶ keeps every window value finite in `f32`,
@@ -74,19 +82,19 @@ pub const MAX_DESIGN_TAPS: usize = 65_536;
 pub const MAX_POLYNOMIAL_ORDER: usize = 10;
 
 /// Checks a sample rate and returns half of it.
-fn nyquist<R: Real>(sample_rate_hz: R) -> Result<R, crate::Error> {
+fn nyquist<R: Real>(sample_rate_hz: R) -> Result<R, DesignError> {
     if sample_rate_hz.is_finite() && sample_rate_hz > R::ZERO {
         Ok(sample_rate_hz * R::from_f64(0.5))
     } else {
-        Err(crate::Error::FrequencyOutOfRange)
+        Err(DesignError::FrequencyOutOfRange)
     }
 }
 
 /// Checks that `f` lies strictly inside (0, fs/2).
-fn inside<R: Real>(f: R, nyquist: R) -> Result<R, crate::Error> {
+fn inside<R: Real>(f: R, nyquist: R) -> Result<R, DesignError> {
     if f.is_finite() && f > R::ZERO && f < nyquist {
         Ok(f)
     } else {
-        Err(crate::Error::FrequencyOutOfRange)
+        Err(DesignError::FrequencyOutOfRange)
     }
 }

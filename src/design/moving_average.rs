@@ -1,7 +1,7 @@
 //! The moving average (boxcar): N equal taps.
 
+use super::DesignError;
 use super::Real;
-use crate::Error;
 
 /// Fills `taps` with the N-point moving average, every tap 1/N (DC gain 1).
 ///
@@ -14,7 +14,7 @@ use crate::Error;
 /// which keeps Σ taps = 2^15 exactly.
 ///
 /// # Errors
-/// [`Error::TooShort`] for empty `taps`.
+/// [`DesignError::TooShort`] for empty `taps`.
 ///
 /// ```
 /// use tapline::design::moving_average;
@@ -22,11 +22,11 @@ use crate::Error;
 /// moving_average(&mut h)?;
 /// assert_eq!(h, [0.25; 4]);
 /// assert!(moving_average::<f32>(&mut []).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
-pub fn moving_average<R: Real>(taps: &mut [R]) -> Result<(), Error> {
+pub fn moving_average<R: Real>(taps: &mut [R]) -> Result<(), DesignError> {
     if taps.is_empty() {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 1,
             found: 0,
         });

@@ -1,5 +1,6 @@
 //! Float taps to fixed-point taps, keeping the DC gain exact.
 
+use super::DesignError;
 use super::real::{abs_f64, round_f64};
 use crate::Error;
 use crate::headroom::Symmetry;
@@ -85,8 +86,8 @@ impl Quantized {
 /// report says how large the largest was.
 ///
 /// # Errors
-/// [`Error::TapCountMismatch`] if the lengths differ; [`Error::TooShort`] for no taps;
-/// [`Error::TapOutOfRange`] for a non-finite tap or one beyond the format by more than 1 LSB.
+/// [`DesignError::Filter`]([`Error::TapCountMismatch`]) if the lengths differ; [`DesignError::TooShort`] for no taps;
+/// [`DesignError::TapOutOfRange`] for a non-finite tap or one beyond the format by more than 1 LSB.
 ///
 /// ```
 /// use tapline::design::{moving_average, quantize};
@@ -101,18 +102,22 @@ impl Quantized {
 /// let mut one = [0i16; 1];
 /// assert_eq!(quantize(&[1.0f32], &mut one)?.max_error_lsb(), 1.0);
 /// assert!(quantize(&[1.5f32], &mut one).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
-pub fn quantize<S: Sample, T: FixedPoint>(taps: &[S], out: &mut [T]) -> Result<Quantized, Error> {
+pub fn quantize<S: Sample, T: FixedPoint>(
+    taps: &[S],
+    out: &mut [T],
+) -> Result<Quantized, DesignError> {
     if taps.len() != out.len() {
         return Err(Error::TapCountMismatch {
             ideal: taps.len(),
             quantized: out.len(),
-        });
+        }
+        .into());
     }
     let n = taps.len();
     if n == 0 {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 1,
             found: 0,
         });
@@ -126,7 +131,7 @@ pub fn quantize<S: Sample, T: FixedPoint>(taps: &[S], out: &mut [T]) -> Result<Q
     for (k, slot) in out.iter_mut().enumerate() {
         let v = scaled(k);
         if !(v.is_finite() && v >= lo - 1.0 && v <= hi + 1.0) {
-            return Err(Error::TapOutOfRange { index: k });
+            return Err(DesignError::TapOutOfRange { index: k });
         }
         *slot = T::from_raw(round_f64(v).clamp(lo, hi) as i64);
         let t = sum + v;

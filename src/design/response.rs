@@ -2,9 +2,9 @@
 //! measured over bands (ripple, attenuation, −3 dB point, DC gain). Works on float and on
 //! quantized taps alike, through [`Sample::to_f64`] (exact for every tap type).
 
+use super::DesignError;
 use super::real::round_f64;
 use super::{Real, nyquist};
-use crate::Error;
 use crate::num::Sample;
 
 /// A complex number: a filter's response at one frequency.
@@ -227,7 +227,7 @@ fn refine<R: Real, T: Sample>(taps: &[T], a: f64, b: f64, sign: f64) -> (f64, R)
 /// it agrees with an independent 64-points-per-lobe scan to 0.003 dB.
 ///
 /// # Errors
-/// [`Error::FrequencyOutOfRange`] unless 0 ≤ `low_hz` ≤ `high_hz` ≤ fs/2; [`Error::TooShort`]
+/// [`DesignError::FrequencyOutOfRange`] unless 0 ≤ `low_hz` ≤ `high_hz` ≤ fs/2; [`DesignError::TooShort`]
 /// for no taps.
 ///
 /// ```
@@ -238,23 +238,23 @@ fn refine<R: Real, T: Sample>(taps: &[T], a: f64, b: f64, sign: f64) -> (f64, R)
 /// assert!(stop.min < 1e-15);
 /// let whole = gain_range(&h, 0.0, 0.0, 1000.0)?;    // a band of one frequency: DC
 /// assert_eq!((whole.min, whole.max), (1.0, 1.0));
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 pub fn gain_range<R: Real, T: Sample>(
     taps: &[T],
     low_hz: R,
     high_hz: R,
     sample_rate_hz: R,
-) -> Result<GainRange<R>, Error> {
+) -> Result<GainRange<R>, DesignError> {
     let half = nyquist(sample_rate_hz)?;
     if taps.is_empty() {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 1,
             found: 0,
         });
     }
     if !(low_hz >= R::ZERO && low_hz <= high_hz && high_hz <= half) {
-        return Err(Error::FrequencyOutOfRange);
+        return Err(DesignError::FrequencyOutOfRange);
     }
     let fs = sample_rate_hz.to_f64();
     let (a, b) = (low_hz.to_f64() / fs, high_hz.to_f64() / fs);

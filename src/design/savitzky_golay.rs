@@ -12,8 +12,8 @@
 //! p_{j+1} = u·p_j − β_j·p_{j−1} with β_j = ‖p_j‖²/‖p_{j−1}‖², and the fitted value at the centre
 //! is Σ_k x_k·Σ_j p_j(0)·p_j(u_k)/‖p_j‖² (the derivative uses p_j′(0) and a factor 1/m).
 
+use super::DesignError;
 use super::{MAX_POLYNOMIAL_ORDER, Real};
-use crate::Error;
 
 /// Which quantity the taps estimate.
 #[derive(Clone, Copy, PartialEq)]
@@ -35,8 +35,8 @@ enum Estimate {
 /// `tests/design.rs`).
 ///
 /// # Errors
-/// [`Error::OddLengthRequired`] for an even length; [`Error::TooShort`] for an empty slice;
-/// [`Error::PolynomialOrder`] when `order ≥ L` or `order >` [`MAX_POLYNOMIAL_ORDER`].
+/// [`DesignError::OddLengthRequired`] for an even length; [`DesignError::TooShort`] for an empty slice;
+/// [`DesignError::PolynomialOrder`] when `order ≥ L` or `order >` [`MAX_POLYNOMIAL_ORDER`].
 ///
 /// ```
 /// use tapline::design::savitzky_golay_smoother;
@@ -47,9 +47,9 @@ enum Estimate {
 /// // Order L − 1 fits every point exactly: the smoother passes the centre sample through.
 /// savitzky_golay_smoother(4, &mut h)?;
 /// assert!((h[2] - 1.0).abs() < 1e-12 && h[0].abs() < 1e-12);
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
-pub fn savitzky_golay_smoother<R: Real>(order: usize, taps: &mut [R]) -> Result<(), Error> {
+pub fn savitzky_golay_smoother<R: Real>(order: usize, taps: &mut [R]) -> Result<(), DesignError> {
     fit(order, taps, Estimate::Value)
 }
 
@@ -68,7 +68,7 @@ pub fn savitzky_golay_smoother<R: Real>(order: usize, taps: &mut [R]) -> Result<
 /// **Accuracy:** as [`savitzky_golay_smoother`].
 ///
 /// # Errors
-/// As [`savitzky_golay_smoother`], and [`Error::PolynomialOrder`] for order 0 (a constant has no
+/// As [`savitzky_golay_smoother`], and [`DesignError::PolynomialOrder`] for order 0 (a constant has no
 /// slope).
 ///
 /// ```
@@ -78,25 +78,25 @@ pub fn savitzky_golay_smoother<R: Real>(order: usize, taps: &mut [R]) -> Result<
 /// let expected = [0.2, 0.1, 0.0, -0.1, -0.2];
 /// assert!(h.iter().zip(expected).all(|(a, b)| (a - b).abs() < 1e-15));
 /// assert!(savitzky_golay_slope(0, &mut h).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
-pub fn savitzky_golay_slope<R: Real>(order: usize, taps: &mut [R]) -> Result<(), Error> {
+pub fn savitzky_golay_slope<R: Real>(order: usize, taps: &mut [R]) -> Result<(), DesignError> {
     fit(order, taps, Estimate::Slope)
 }
 
-fn fit<R: Real>(order: usize, taps: &mut [R], estimate: Estimate) -> Result<(), Error> {
+fn fit<R: Real>(order: usize, taps: &mut [R], estimate: Estimate) -> Result<(), DesignError> {
     let len = taps.len();
     if len == 0 {
-        return Err(Error::TooShort {
+        return Err(DesignError::TooShort {
             minimum: 1,
             found: 0,
         });
     }
     if len % 2 == 0 {
-        return Err(Error::OddLengthRequired { found: len });
+        return Err(DesignError::OddLengthRequired { found: len });
     }
     if order >= len || order > MAX_POLYNOMIAL_ORDER || (estimate == Estimate::Slope && order == 0) {
-        return Err(Error::PolynomialOrder { order, length: len });
+        return Err(DesignError::PolynomialOrder { order, length: len });
     }
     let half = len / 2;
     if half == 0 {

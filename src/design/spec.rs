@@ -1,6 +1,7 @@
 //! A filter spec as a firmware engineer writes it, the Kaiser design that meets it, and the
 //! measurement of any taps (float or quantized) against it.
 
+use super::DesignError;
 use super::{Band, GainRange, Real, Window, gain_range, inside, kaiser, nyquist, windowed_sinc};
 use crate::Error;
 use crate::num::{FixedPoint, Sample};
@@ -69,8 +70,8 @@ pub enum Shape<R> {
 /// assert!(design.measured.meets() && design.taps.len() <= 128);
 /// // Edge case: a stopband edge at half the sample rate is outside (0, fs/2).
 /// let bad = Spec { shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 500.0 }, ..spec };
-/// assert_eq!(bad.kaiser::<128>().err(), Some(tapline::Error::FrequencyOutOfRange));
-/// # Ok::<(), tapline::Error>(())
+/// assert_eq!(bad.kaiser::<128>().err(), Some(tapline::design::DesignError::FrequencyOutOfRange));
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -135,24 +136,61 @@ pub struct Measured<R> {
     pub passband: GainRange<R>,
     /// The smallest and largest stopband gain.
     pub stopband: GainRange<R>,
+    /// The smallest and largest gain over the transition bands (from each passband edge to the
+    /// neighbouring stopband edge); `max_at_hz` is where the largest lies.
+    pub transition: GainRange<R>,
     /// The spec's limits, to compare against.
     pub limits: (R, R),
 }
 
 impl<R: Real> Measured<R> {
-    /// Whether the ripple is at most the spec's and the attenuation at least the spec's.
+    /// Whether the taps meet the whole band plan: the ripple is at most the spec's, the
+    /// attenuation at least the spec's, and nowhere in a transition band does the gain exceed
+    /// [`transition_limit`](Measured::transition_limit). An equiripple design with unequal
+    /// transition widths can hold its pass- and stopbands and still peak far above 1 in the
+    /// wider transition band; such a filter amplifies whatever lies there, so it misses.
     #[must_use]
     pub fn meets(&self) -> bool {
-        self.passband_ripple_db <= self.limits.0 && self.stopband_attenuation_db >= self.limits.1
+        self.passband_ripple_db <= self.limits.0
+            && self.stopband_attenuation_db >= self.limits.1
+            && self.transition_within()
+    }
+
+    /// The passband's upper limit: the largest gain the ripple allows above the smallest
+    /// passband gain measured, min|H|·10^(ripple/20). A gain above it anywhere outside the
+    /// stopbands would be a ripple violation had it been in the passband.
+    #[must_use]
+    pub fn transition_limit(&self) -> R {
+        self.passband.min * self.limits.0.db_to_gain()
+    }
+
+    /// Whether the largest transition-band gain is at most
+    /// [`transition_limit`](Measured::transition_limit).
+    #[must_use]
+    pub fn transition_within(&self) -> bool {
+        self.transition.max <= self.transition_limit()
+    }
+
+    /// The largest transition-band gain in dB relative to a gain of 1 (20·log10 max|H|).
+    #[must_use]
+    pub fn transition_peak_db(&self) -> R {
+        self.transition.max.gain_to_db()
     }
 }
+
+/// The extra stopband attenuation, in dB and in order, that the searches for quantized taps
+/// ([`Spec::kaiser_fixed`], and `Spec::equiripple_fixed` with `std`) ask of the float design
+/// when its quantized taps miss the spec. Rounding each tap moves the response by up to
+/// ½ LSB·N; a fraction of a dB recovers most misses, the last steps cover coarse formats on
+/// short filters, and beyond 9 dB a wider format is the answer.
+pub const QUANTIZATION_MARGINS_DB: [f64; 8] = [0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 9.0];
 
 /// Up to two bands of each kind, as (low, high) in Hz.
 type Bands<R> = ([(R, R); 2], usize);
 
 impl<R: Real> Spec<R> {
     /// The edges in order, checked.
-    fn edges(&self) -> Result<([R; 4], usize), Error> {
+    pub(super) fn edges(&self) -> Result<([R; 4], usize), DesignError> {
         let half = nyquist(self.sample_rate_hz)?;
         let z = R::ZERO;
         let (e, n) = match self.shape {
@@ -179,20 +217,20 @@ impl<R: Real> Spec<R> {
             .zip(e.iter().skip(1).take(n - 1))
             .any(|(a, b)| !(a < b))
         {
-            return Err(Error::EdgesNotIncreasing);
+            return Err(DesignError::EdgesNotIncreasing);
         }
         let db_ok = |v: R| v.is_finite() && v > R::ZERO;
         if !db_ok(self.passband_ripple_db)
             || !db_ok(self.stopband_attenuation_db)
             || self.stopband_attenuation_db > R::from_f64(super::MAX_ATTENUATION_DB)
         {
-            return Err(Error::InvalidDecibels);
+            return Err(DesignError::InvalidDecibels);
         }
         Ok((e, n))
     }
 
     /// (passbands, stopbands).
-    fn bands(&self) -> Result<(Bands<R>, Bands<R>), Error> {
+    fn bands(&self) -> Result<(Bands<R>, Bands<R>), DesignError> {
         let ([a, b, c, d], _) = self.edges()?;
         let (z, h) = (R::ZERO, self.sample_rate_hz * R::from_f64(0.5));
         Ok(match self.shape {
@@ -203,26 +241,91 @@ impl<R: Real> Spec<R> {
         })
     }
 
-    /// Whether the shape passes half the sample rate (and so needs an odd length).
-    fn needs_odd(&self) -> bool {
+    /// Whether the shape passes half the sample rate and so needs an odd length: an
+    /// even-length symmetric filter has a zero there.
+    ///
+    /// ```
+    /// use tapline::design::{Shape, Spec};
+    /// let high = Spec {
+    ///     sample_rate_hz: 1000.0f64,
+    ///     shape: Shape::Highpass { stop_hz: 50.0, pass_hz: 100.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 60.0,
+    /// };
+    /// assert!(high.needs_odd());
+    /// let low = Spec { shape: Shape::Lowpass { pass_hz: 50.0, stop_hz: 100.0 }, ..high };
+    /// assert!(!low.needs_odd());
+    /// ```
+    #[must_use]
+    pub fn needs_odd(&self) -> bool {
         matches!(self.shape, Shape::Highpass { .. } | Shape::Bandstop { .. })
     }
 
-    /// The largest passband deviation δp the ripple allows: 20·log10((1 + δp)/(1 − δp)) = ripple.
-    fn passband_deviation(&self) -> R {
+    /// The largest passband deviation δp the ripple allows: 20·log10((1 + δp)/(1 − δp)) =
+    /// ripple (peak to peak around a gain of 1).
+    ///
+    /// ```
+    /// use tapline::design::{Shape, Spec};
+    /// let spec = Spec {
+    ///     sample_rate_hz: 1000.0f64,
+    ///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 60.0,
+    /// };
+    /// let d = spec.passband_deviation();
+    /// assert!((20.0 * ((1.0 + d) / (1.0 - d)).log10() - 0.1).abs() < 1e-12);
+    /// ```
+    #[must_use]
+    pub fn passband_deviation(&self) -> R {
         let g = self.passband_ripple_db.db_to_gain();
         (g - R::ONE) / (g + R::ONE)
     }
 
-    /// Measures `taps` (float or quantized) against this spec: the passband ripple and the
-    /// stopband attenuation, each over all bands of its kind, by [`gain_range`].
+    /// The largest stopband gain δs the attenuation allows: 10^(−attenuation/20).
+    ///
+    /// ```
+    /// use tapline::design::{Shape, Spec};
+    /// let spec = Spec {
+    ///     sample_rate_hz: 1000.0f64,
+    ///     shape: Shape::Lowpass { pass_hz: 5.0, stop_hz: 50.0 },
+    ///     passband_ripple_db: 0.1,
+    ///     stopband_attenuation_db: 60.0,
+    /// };
+    /// assert!((spec.stopband_deviation() - 1e-3).abs() < 1e-15);
+    /// ```
+    #[must_use]
+    pub fn stopband_deviation(&self) -> R {
+        (-self.stopband_attenuation_db).db_to_gain()
+    }
+
+    /// The narrower transition band's width in Hz (the one that sets the length).
+    pub(super) fn transition_width(&self) -> Result<R, DesignError> {
+        let ([a, b, c, d], n) = self.edges()?;
+        Ok(if n == 4 { (b - a).min_of(d - c) } else { b - a })
+    }
+
+    /// The transition bands, as (low, high) in Hz: between each pair of neighbouring edges
+    /// that separate a passband from a stopband.
+    fn transition_bands(&self) -> Result<Bands<R>, DesignError> {
+        let ([a, b, c, d], n) = self.edges()?;
+        let z = R::ZERO;
+        Ok(if n == 4 {
+            ([(a, b), (c, d)], 2)
+        } else {
+            ([(a, b), (z, z)], 1)
+        })
+    }
+
+    /// Measures `taps` (float or quantized) against this spec's whole band plan: the passband
+    /// ripple and the stopband attenuation, each over all bands of its kind, and the largest
+    /// gain in the transition bands, by [`gain_range`]. [`Measured::meets`] is the verdict.
     ///
     /// **Accuracy:** that of [`gain_range`]: in `f64` the figures are within 10⁻⁹ dB of the
     /// true extremes unless a lobe is narrower than 1/(8N) of the sample rate.
     ///
     /// # Errors
-    /// The spec's errors ([`Error::FrequencyOutOfRange`], [`Error::EdgesNotIncreasing`],
-    /// [`Error::InvalidDecibels`]); [`Error::TooShort`] for no taps.
+    /// The spec's errors ([`DesignError::FrequencyOutOfRange`], [`DesignError::EdgesNotIncreasing`],
+    /// [`DesignError::InvalidDecibels`]); [`DesignError::TooShort`] for no taps.
     ///
     /// ```
     /// use tapline::design::{Shape, Spec};
@@ -236,12 +339,12 @@ impl<R: Real> Spec<R> {
     /// let m = spec.measure(&[1.0f64])?;
     /// assert_eq!((m.passband_ripple_db, m.stopband_attenuation_db), (0.0, 0.0));
     /// assert!(!m.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn measure<T: Sample>(&self, taps: &[T]) -> Result<Measured<R>, Error> {
+    pub fn measure<T: Sample>(&self, taps: &[T]) -> Result<Measured<R>, DesignError> {
         let ((pass, n_pass), (stop, n_stop)) = self.bands()?;
         let fs = self.sample_rate_hz;
-        let merge = |bands: &[(R, R)]| -> Result<GainRange<R>, Error> {
+        let merge = |bands: &[(R, R)]| -> Result<GainRange<R>, DesignError> {
             let mut all: Option<GainRange<R>> = None;
             for &(lo, hi) in bands {
                 let g = gain_range(taps, lo, hi, fs)?;
@@ -263,18 +366,21 @@ impl<R: Real> Spec<R> {
                     },
                 });
             }
-            all.ok_or(Error::TooShort {
+            all.ok_or(DesignError::TooShort {
                 minimum: 1,
                 found: 0,
             })
         };
         let passband = merge(pass.get(..n_pass).unwrap_or(&[]))?;
         let stopband = merge(stop.get(..n_stop).unwrap_or(&[]))?;
+        let (between, n_between) = self.transition_bands()?;
+        let transition = merge(between.get(..n_between).unwrap_or(&[]))?;
         Ok(Measured {
             passband_ripple_db: passband.ripple_db(),
             stopband_attenuation_db: stopband.attenuation_db(),
             passband,
             stopband,
+            transition,
             limits: (self.passband_ripple_db, self.stopband_attenuation_db),
         })
     }
@@ -296,44 +402,33 @@ impl<R: Real> Spec<R> {
     /// design and check specs beyond 80 dB in `f64`, on the host.
     ///
     /// # Errors
-    /// The spec's errors; [`Error::InvalidTransition`] for a transition so narrow that the
+    /// The spec's errors; [`DesignError::InvalidTransition`] for a transition so narrow that the
     /// estimate exceeds [`MAX_DESIGN_TAPS`](super::MAX_DESIGN_TAPS);
-    /// [`Error::OutputLength`] when the design needs more than `N` taps (`expected` is the
-    /// length it needs); [`Error::SpecNotMet`] if it still misses after 10 designs, or the
+    /// [`DesignError::Filter`]([`Error::OutputLength`]) when the design needs more than `N` taps (`expected` is the
+    /// length it needs); [`DesignError::SpecNotMet`] if it still misses after 10 designs, or the
     /// raised design attenuation would pass [`MAX_ATTENUATION_DB`](super::MAX_ATTENUATION_DB)
     /// (an `f32` design cannot resolve much beyond 120 dB).
-    pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, Error> {
+    pub fn kaiser<const N: usize>(&self) -> Result<KaiserDesign<R, N>, DesignError> {
         let ([a, b, c, d], _) = self.edges()?;
         let two = R::from_f64(2.0);
-        let (band, transition) = match self.shape {
-            Shape::Lowpass { .. } => (
-                Band::Lowpass {
-                    cutoff_hz: (a + b) / two,
-                },
-                b - a,
-            ),
-            Shape::Highpass { .. } => (
-                Band::Highpass {
-                    cutoff_hz: (a + b) / two,
-                },
-                b - a,
-            ),
-            Shape::Bandpass { .. } => (
-                Band::Bandpass {
-                    low_hz: (a + b) / two,
-                    high_hz: (c + d) / two,
-                },
-                (b - a).min_of(d - c),
-            ),
-            Shape::Bandstop { .. } => (
-                Band::Bandstop {
-                    low_hz: (a + b) / two,
-                    high_hz: (c + d) / two,
-                },
-                (b - a).min_of(d - c),
-            ),
+        let band = match self.shape {
+            Shape::Lowpass { .. } => Band::Lowpass {
+                cutoff_hz: (a + b) / two,
+            },
+            Shape::Highpass { .. } => Band::Highpass {
+                cutoff_hz: (a + b) / two,
+            },
+            Shape::Bandpass { .. } => Band::Bandpass {
+                low_hz: (a + b) / two,
+                high_hz: (c + d) / two,
+            },
+            Shape::Bandstop { .. } => Band::Bandstop {
+                low_hz: (a + b) / two,
+                high_hz: (c + d) / two,
+            },
         };
-        let stop_dev = (-self.stopband_attenuation_db).db_to_gain();
+        let transition = self.transition_width()?;
+        let stop_dev = self.stopband_deviation();
         let pass_dev = self.passband_deviation();
         let mut design_attenuation_db = -stop_dev.min_of(pass_dev).gain_to_db();
         let mut estimated_len = 0;
@@ -362,7 +457,8 @@ impl<R: Real> Spec<R> {
                 return Err(Error::OutputLength {
                     expected: len,
                     found: N,
-                });
+                }
+                .into());
             }
             windowed_sinc(
                 band,
@@ -396,21 +492,21 @@ impl<R: Real> Spec<R> {
                 break;
             }
         }
-        Err(Error::SpecNotMet { taps: last_len })
+        Err(DesignError::SpecNotMet { taps: last_len })
     }
 
     /// [`kaiser`](Spec::kaiser), then [`quantize`](super::quantize) into the fixed-point
     /// format `T` (`i16` for Q15, `i32` for Q31, `fixed` types), then [`measure`](Spec::measure)
     /// the **quantized** taps. Rounding the taps adds an error of up to ½ LSB per tap, which can
     /// cost a design that just met its spec a fraction of a dB; when the quantized taps miss,
-    /// the float design is asked for 0.5, 1, 2, 3, 4, 6 and then 9 dB more stopband attenuation
-    /// in turn, until they meet the spec.
+    /// the float design is asked for more stopband attenuation, step by step through
+    /// [`QUANTIZATION_MARGINS_DB`] (0.5, 1, 2, 3, 4, 6 and then 9 dB), until they meet the spec.
     ///
     /// **Accuracy:** the quantized taps meet the spec as [`measure`](Spec::measure) measures
     /// them; their DC gain is exact where symmetry allows (see [`quantize`](super::quantize)).
     ///
     /// # Errors
-    /// As [`kaiser`](Spec::kaiser) and [`quantize`](super::quantize); [`Error::SpecNotMet`] if
+    /// As [`kaiser`](Spec::kaiser) and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] if
     /// even 9 dB of margin does not help (the format is too coarse for the spec: Q15 taps of a
     /// 150-tap lowpass do not reach 100 dB).
     ///
@@ -432,15 +528,15 @@ impl<R: Real> Spec<R> {
     ///     stopband_attenuation_db: 100.0,
     /// };
     /// let q15 = deep.kaiser_fixed::<i16, 512>();
-    /// assert!(matches!(q15, Err(tapline::Error::SpecNotMet { .. })));
+    /// assert!(matches!(q15, Err(tapline::design::DesignError::SpecNotMet { .. })));
     /// assert!(deep.kaiser_fixed::<i32, 512>()?.measured.meets());
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
     pub fn kaiser_fixed<T: FixedPoint, const N: usize>(
         &self,
-    ) -> Result<FixedDesign<R, T, N>, Error> {
+    ) -> Result<FixedDesign<R, T, N>, DesignError> {
         let mut longest = 0;
-        for margin in [0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 9.0] {
+        for margin in QUANTIZATION_MARGINS_DB {
             let margin = R::from_f64(margin);
             let stricter = Spec {
                 stopband_attenuation_db: self.stopband_attenuation_db + margin,
@@ -453,7 +549,8 @@ impl<R: Real> Spec<R> {
                 return Err(Error::OutputLength {
                     expected: float.taps.len(),
                     found: N,
-                });
+                }
+                .into());
             }
             let quantized = super::quantize(&float.taps, &mut taps)?;
             let measured = self.measure(&taps)?;
@@ -467,6 +564,6 @@ impl<R: Real> Spec<R> {
                 });
             }
         }
-        Err(Error::SpecNotMet { taps: longest })
+        Err(DesignError::SpecNotMet { taps: longest })
     }
 }

@@ -1,7 +1,7 @@
 //! Window functions in their symmetric form, the form filter design needs.
 
+use super::DesignError;
 use super::{MAX_KAISER_BETA, Real};
-use crate::Error;
 
 /// A window, evaluated in its **symmetric** form: for length N and M = N − 1, sample n uses
 /// x = n/M, so w\[n\] = w\[M − n\] and the ends are both included (length 1 gives \[1\]).
@@ -31,7 +31,7 @@ use crate::Error;
 /// Window::Kaiser { beta: 8.0 }.fill(&mut one)?;
 /// assert_eq!(one, [1.0]);
 /// assert!(Window::Kaiser { beta: -1.0f32 }.fill(&mut one).is_err());
-/// # Ok::<(), tapline::Error>(())
+/// # Ok::<(), tapline::design::DesignError>(())
 /// ```
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
@@ -57,14 +57,14 @@ pub enum Window<R> {
 
 impl<R: Real> Window<R> {
     /// Checks the window's parameter.
-    fn check(self) -> Result<(), Error> {
+    fn check(self) -> Result<(), DesignError> {
         match self {
             Window::Kaiser { beta }
                 if !(beta.is_finite()
                     && beta >= R::ZERO
                     && beta <= R::from_f64(MAX_KAISER_BETA)) =>
             {
-                Err(Error::KaiserBetaOutOfRange)
+                Err(DesignError::KaiserBetaOutOfRange)
             }
             _ => Ok(()),
         }
@@ -74,12 +74,12 @@ impl<R: Real> Window<R> {
     /// copy of the first, so the result is exactly symmetric.
     ///
     /// # Errors
-    /// [`Error::TooShort`] for an empty `out`; [`Error::KaiserBetaOutOfRange`].
-    pub fn fill(self, out: &mut [R]) -> Result<(), Error> {
+    /// [`DesignError::TooShort`] for an empty `out`; [`DesignError::KaiserBetaOutOfRange`].
+    pub fn fill(self, out: &mut [R]) -> Result<(), DesignError> {
         self.check()?;
         let len = out.len();
         if len == 0 {
-            return Err(Error::TooShort {
+            return Err(DesignError::TooShort {
                 minimum: 1,
                 found: 0,
             });
@@ -101,18 +101,18 @@ impl<R: Real> Window<R> {
     /// ends there).
     ///
     /// # Errors
-    /// [`Error::TooShort`] for `len` = 0; [`Error::KaiserBetaOutOfRange`].
+    /// [`DesignError::TooShort`] for `len` = 0; [`DesignError::KaiserBetaOutOfRange`].
     ///
     /// ```
     /// use tapline::design::Window;
     /// assert_eq!(Window::<f64>::Triangular.value(2, 5)?, 1.0);
     /// assert_eq!(Window::<f64>::Hann.value(7, 5)?, 0.0); // outside the window
-    /// # Ok::<(), tapline::Error>(())
+    /// # Ok::<(), tapline::design::DesignError>(())
     /// ```
-    pub fn value(self, n: usize, len: usize) -> Result<R, Error> {
+    pub fn value(self, n: usize, len: usize) -> Result<R, DesignError> {
         self.check()?;
         if len == 0 {
-            return Err(Error::TooShort {
+            return Err(DesignError::TooShort {
                 minimum: 1,
                 found: 0,
             });

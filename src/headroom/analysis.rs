@@ -341,6 +341,25 @@ impl Headroom {
         low < -word_max - 1 || high > word_max
     }
 
+    /// The verdict for taps run with `rounding`: safe when the default 64-bit accumulator
+    /// holds every sum **and** no input in range makes the output saturate. Exact: both halves
+    /// come from the exact `i128` bounds above.
+    ///
+    /// ```
+    /// use tapline::headroom::{Headroom, InputRange};
+    /// use tapline::Rounding;
+    /// // Σ|h| = 1: full-scale input stays within the Q15 word.
+    /// let half = Headroom::q15(&[16384, 16384], InputRange::FULL);
+    /// assert!(half.is_safe(Rounding::HalfUp));
+    /// // Edge case: Σ|h| = 2 − 2⁻¹⁴ drives full-scale input past the word, so it clamps.
+    /// let big = Headroom::q15(&[32767, 32767], InputRange::FULL);
+    /// assert!(big.fits(64) && !big.is_safe(Rounding::HalfUp));
+    /// ```
+    #[must_use]
+    pub const fn is_safe(&self, rounding: Rounding) -> bool {
+        self.fits(64) && !self.can_saturate(rounding)
+    }
+
     /// The input sequence, oldest first, whose last sample produces the accumulator bound
     /// `toward`: x\[n−k\] = the end of the range matching the sign of h\[k\] (a zero tap takes
     /// the range's maximum). Raw sample codes; `taps` must be the tap set analysed.

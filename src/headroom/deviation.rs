@@ -4,6 +4,77 @@ use super::InputRange;
 use crate::num::{FixedPoint, MulAcc};
 use crate::{Error, Fir, Ring, Rounding};
 
+/// γ_n = n·u/(1 − n·u): the relative error bound of an n-term sum or dot product evaluated in
+/// floating point with unit roundoff `u` (2⁻²⁴ for `f32`, 2⁻⁵³ for `f64`), valid while
+/// n·u < 1. Source: N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed.,
+/// SIAM 2002, §3.1 (Lemma 3.1 and the dot-product bound |x·y − fl(x·y)| ≤ γ_n·|x|·|y|).
+///
+/// Returns +∞ when n·u ≥ 1 (no bound of this form exists).
+///
+/// ```
+/// use tapline::headroom::gamma;
+/// let u = f64::powi(2.0, -24);
+/// // 64 terms in f32: 64·2⁻²⁴/(1 − 64·2⁻²⁴)
+/// assert_eq!(gamma(64, u), 64.0 * u / (1.0 - 64.0 * u));
+/// assert_eq!(gamma(0, u), 0.0);
+/// // Edge case: n·u = 1 has no bound.
+/// assert_eq!(gamma(1 << 24, u), f64::INFINITY);
+/// ```
+#[must_use]
+pub fn gamma(n: usize, unit_roundoff: f64) -> f64 {
+    let nu = n as f64 * unit_roundoff;
+    if nu < 1.0 {
+        nu / (1.0 - nu)
+    } else {
+        f64::INFINITY
+    }
+}
+
+/// The largest |y_f32 − y_f64| of an `f32` FIR filter (taps `taps`, samples rounded to `f32`,
+/// accumulated in `f32` in tap order) against the float64 filter with the `ideal` taps, for
+/// inputs up to `largest_input` in magnitude. It adds four terms, with u = 2⁻²⁴ and
+/// |x₃₂| ≤ (1 + u)·|x|:
+///
+/// * the taps' rounding to `f32`: Σ|h₃₂ − h|·|x₃₂|;
+/// * the samples' rounding to `f32`: Σ|h|·u·|x|;
+/// * the `f32` dot product: γ_N(2⁻²⁴)·Σ|h₃₂|·|x₃₂| ([`gamma`]);
+/// * the float64 reference's own: γ_N(2⁻⁵³)·Σ|h|·|x|.
+///
+/// N is the number of `ideal` taps (the two tables must match in length; extra entries of the
+/// longer one are ignored). NaN and infinite inputs are outside the bound.
+///
+/// ```
+/// use tapline::headroom::f32_error_bound;
+/// // Taps exact in f32 and Σ|h| = 1 at full scale 1: u (sample rounding) + γ₃(u)·(1 + u)
+/// // (the f32 sum) + γ₃(2⁻⁵³) (the reference) = 4u and a little more.
+/// let ideal = [0.25f64, 0.5, 0.25];
+/// let taps = ideal.map(|h| h as f32);
+/// let u = f64::from(f32::EPSILON) / 2.0;
+/// let b = f32_error_bound(&ideal, &taps, 1.0);
+/// assert!(b > 4.0 * u && b < 4.0001 * u);
+/// // Edge case: no input, no error.
+/// assert_eq!(f32_error_bound(&ideal, &taps, 0.0), 0.0);
+/// ```
+#[must_use]
+pub fn f32_error_bound(ideal: &[f64], taps: &[f32], largest_input: f64) -> f64 {
+    // Unit roundoffs: 2⁻²⁴ (f32) and 2⁻⁵³ (f64), as exact powers of two.
+    let u32 = f64::from(f32::EPSILON) / 2.0;
+    let u64 = f64::EPSILON / 2.0;
+    let n = ideal.len();
+    let x32 = largest_input * (1.0 + u32);
+    let taps_rounding: f64 = ideal
+        .iter()
+        .zip(taps)
+        .map(|(h, t)| (f64::from(*t) - h).abs())
+        .sum();
+    let sum_h: f64 = ideal.iter().map(|h| h.abs()).sum();
+    let sum_h32: f64 = taps.iter().map(|t| f64::from(*t).abs()).sum();
+    taps_rounding * x32
+        + sum_h * u32 * largest_input
+        + gamma(n, u32) * sum_h32 * x32
+        + gamma(n, u64) * sum_h * largest_input
+}
+
 /// A bound on |y_fixed − y_ideal| in output LSBs (the sample format's LSB), valid for every
 /// input in range as long as the output does not saturate:
 ///

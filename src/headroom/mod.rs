@@ -22,7 +22,7 @@ mod trace;
 
 pub use crate::num::Acc32Checked;
 pub use analysis::{AccWidth, Extreme, Headroom};
-pub use deviation::{Deviation, ErrorBound, measure_deviation};
+pub use deviation::{Deviation, ErrorBound, f32_error_bound, gamma, measure_deviation};
 pub(crate) use proof::proof_holds;
 pub use proof::{Acc32, CheckedTaps, ProvenTaps};
 pub use range::{Align, InputRange};

@@ -2,17 +2,19 @@
 //! equiripple) → the measured figures and the headroom proof; `emit` also writes the taps as a
 //! Rust source file.
 
-use crate::atomic;
-use crate::failure::Failure;
-use crate::report::{self, Report};
-use crate::spec::{BandKind, Chosen, MAX_EQUIRIPPLE_TAPS, Method};
-use crate::taps::{Codes, Format};
+use crate::design::{DesignError, EquirippleDesign, MAX_EQUIRIPPLE_TAPS, Measured};
+use crate::headroom::{ErrorBound, Headroom, InputRange};
+use crate::tool::failure::Failure;
+use crate::tool::input::spec::{Chosen, Method};
+use crate::tool::input::taps::{Codes, Format};
+use crate::tool::output::atomic;
+use crate::tool::output::report::{self, Report};
+use crate::{Error, Rounding};
 use serde_json::{Value, json};
 use std::fmt::Write;
+use std::format;
 use std::path::Path;
-use tapline::design::{EquirippleBand, Measured, Spec, equiripple};
-use tapline::headroom::{ErrorBound, Headroom};
-use tapline::{Error, Rounding};
+use std::prelude::rust_2024::*;
 
 /// The longest design the tool makes (the library's designs are fixed-capacity).
 pub const MAX_TAPS: usize = 2048;
@@ -45,6 +47,8 @@ pub struct Designed {
     pub measured: Measured<f64>,
     /// Fixed point only: the headroom and the error bound against the float taps.
     pub proof: Option<(Headroom, ErrorBound)>,
+    /// Fixed point only: the input range the proof and the bound were made for.
+    pub input: Option<InputRange>,
 }
 
 #[derive(Clone)]
@@ -53,12 +57,12 @@ pub enum Taps {
     Float(Vec<f32>),
 }
 
-fn library(e: Error) -> Failure {
-    match e {
-        Error::OutputLength { expected, .. } => Failure::plain(format!(
+fn library(e: impl Into<DesignError>) -> Failure {
+    match e.into() {
+        DesignError::Filter(Error::OutputLength { expected, .. }) => Failure::plain(format!(
             "design: the spec needs {expected} taps, more than the tool's {MAX_TAPS}: expected a wider transition band or less attenuation"
         )),
-        Error::SpecNotMet { taps, .. } => Failure::plain(format!(
+        DesignError::SpecNotMet { taps, .. } => Failure::plain(format!(
             "design: no Kaiser design of up to {taps} taps meets the spec in this format: expected a coarser spec or a wider format"
         )),
         other => Failure::plain(format!("design: {other}")),
@@ -77,21 +81,11 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
     match chosen.format {
         Format::F32 => {
             let float = spec.kaiser::<MAX_TAPS>().map_err(library)?;
-            let taps: Vec<f32> = float.taps.iter().map(|&h| h as f32).collect();
-            let measured = spec.measure(&taps).map_err(library)?;
-            Ok(Designed {
-                ideal: float.taps.to_vec(),
-                float_measured: float.measured,
-                how: How::Window {
-                    estimated_len: float.estimated_len,
-                    beta: float.beta,
-                },
-                margin_db: 0.0,
-                taps: Taps::Float(taps),
-                measured,
-                proof: None,
-                chosen,
-            })
+            let how = How::Window {
+                estimated_len: float.estimated_len,
+                beta: float.beta,
+            };
+            single(chosen, float.taps.to_vec(), float.measured, how)
         }
         Format::Q15 | Format::Q31 => {
             let (float, codes, measured, margin_db) = if chosen.format == Format::Q15 {
@@ -128,6 +122,28 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
     }
 }
 
+/// f32 taps: the float design rounded to f32 and measured; no headroom to prove.
+fn single(
+    chosen: Chosen,
+    ideal: Vec<f64>,
+    float_measured: Measured<f64>,
+    how: How,
+) -> Result<Designed, Failure> {
+    let taps: Vec<f32> = ideal.iter().map(|&h| h as f32).collect();
+    let measured = chosen.spec.measure(&taps).map_err(library)?;
+    Ok(Designed {
+        ideal,
+        float_measured,
+        how,
+        margin_db: 0.0,
+        taps: Taps::Float(taps),
+        measured,
+        proof: None,
+        input: None,
+        chosen,
+    })
+}
+
 /// The headroom proof and error bound of fixed-point taps, and the finished design.
 fn fixed(
     chosen: Chosen,
@@ -154,244 +170,60 @@ fn fixed(
         taps: Taps::Fixed(codes),
         measured,
         proof: Some((headroom, bound)),
+        input: Some(input),
         chosen,
     })
-}
-
-/// The equiripple bands of a spec: gain 1 in the passbands with weight 1, gain 0 in the
-/// stopbands with weight δp/δs, so that the exchange's equal weighted error puts each band's
-/// deviation at the ratio the spec allows.
-fn equiripple_bands(chosen: &Chosen, spec: &Spec<f64>) -> Vec<EquirippleBand> {
-    let half = spec.sample_rate_hz / 2.0;
-    let (pass_dev, stop_dev) = deviations(spec);
-    let stop_weight = pass_dev / stop_dev;
-    let e = &chosen.edges;
-    let at = |k: usize| e.get(k).copied().unwrap_or(0.0);
-    let pass = |low_hz, high_hz| EquirippleBand {
-        low_hz,
-        high_hz,
-        gain: 1.0,
-        weight: 1.0,
-    };
-    let stop = |low_hz, high_hz| EquirippleBand {
-        low_hz,
-        high_hz,
-        gain: 0.0,
-        weight: stop_weight,
-    };
-    match chosen.band {
-        BandKind::Lowpass => vec![pass(0.0, at(0)), stop(at(1), half)],
-        BandKind::Highpass => vec![stop(0.0, at(0)), pass(at(1), half)],
-        BandKind::Bandpass => vec![stop(0.0, at(0)), pass(at(1), at(2)), stop(at(3), half)],
-        BandKind::Bandstop => vec![pass(0.0, at(0)), stop(at(1), at(2)), pass(at(3), half)],
-    }
-}
-
-/// (δp, δs): the largest passband deviation the ripple allows, 20·log10((1 + δp)/(1 − δp)) =
-/// ripple, and the largest stopband gain the attenuation allows.
-fn deviations(spec: &Spec<f64>) -> (f64, f64) {
-    let g = 10f64.powf(spec.passband_ripple_db / 20.0);
-    (
-        (g - 1.0) / (g + 1.0),
-        10f64.powf(-spec.stopband_attenuation_db / 20.0),
-    )
-}
-
-/// Kaiser's length estimate for an equiripple filter,
-/// N ≈ (−20·log10 √(δp·δs) − 13) / (14.6·Δf/fs) + 1 (J. F. Kaiser, 1974; from memory), made
-/// odd where the band passes fs/2.
-fn equiripple_estimate(chosen: &Chosen, spec: &Spec<f64>) -> usize {
-    let (pass_dev, stop_dev) = deviations(spec);
-    let e = &chosen.edges;
-    let width = |a: usize, b: usize| match (e.get(a), e.get(b)) {
-        (Some(x), Some(y)) => y - x,
-        _ => f64::INFINITY,
-    };
-    let transition = width(0, 1).min(width(2, 3));
-    let n = (-20.0 * (pass_dev * stop_dev).sqrt().log10() - 13.0)
-        / (14.6 * transition / spec.sample_rate_hz)
-        + 1.0;
-    let n = if n.is_finite() {
-        n.ceil().max(3.0)
-    } else {
-        3.0
-    };
-    let n = (n as usize).min(MAX_EQUIRIPPLE_TAPS);
-    if odd_only(chosen) && n % 2 == 0 {
-        n + 1
-    } else {
-        n
-    }
-}
-
-fn odd_only(chosen: &Chosen) -> bool {
-    matches!(chosen.band, BandKind::Highpass | BandKind::Bandstop)
-}
-
-/// One equiripple design of `len` taps for `spec`, measured against it.
-struct Candidate {
-    taps: Vec<f64>,
-    measured: Measured<f64>,
-    weighted_ripple: f64,
-    iterations: u32,
-}
-
-fn equiripple_at(chosen: &Chosen, spec: &Spec<f64>, len: usize) -> Result<Candidate, Error> {
-    let d = equiripple(len, &equiripple_bands(chosen, spec), spec.sample_rate_hz)?;
-    let measured = spec.measure(&d.taps)?;
-    Ok(Candidate {
-        taps: d.taps,
-        measured,
-        weighted_ripple: d.weighted_ripple,
-        iterations: d.iterations,
-    })
-}
-
-/// The shortest equiripple design that meets `spec`, searched from Kaiser's estimate: if the
-/// estimate misses, lengths grow in doubling steps until one meets, then bisection finds the
-/// shortest between the last miss and that one; finally shorter lengths are tried one step at a
-/// time while they still meet (the estimate is often generous). The step is 2 for bands that
-/// need an odd length. A length whose exchange does not converge counts as a miss.
-fn shortest_equiripple(chosen: &Chosen, spec: &Spec<f64>) -> Result<Candidate, Failure> {
-    let step = if odd_only(chosen) { 2 } else { 1 };
-    let meets = |len: usize| match equiripple_at(chosen, spec, len) {
-        Ok(c) if c.measured.meets() => Some(c),
-        _ => None,
-    };
-    let mut len = equiripple_estimate(chosen, spec);
-    let mut best = meets(len);
-    if best.is_none() {
-        // Gallop: the last length known to miss, and the next try.
-        let mut missed = len;
-        let mut jump = step;
-        loop {
-            if missed >= MAX_EQUIRIPPLE_TAPS {
-                return Err(Failure::plain(format!(
-                    "design: no equiripple design of up to {MAX_EQUIRIPPLE_TAPS} taps (the library's limit) meets the spec: expected a wider transition band, less attenuation, or method window"
-                )));
-            }
-            let mut next = (missed + jump).min(MAX_EQUIRIPPLE_TAPS);
-            if next % 2 == 0 && step == 2 {
-                next -= 1;
-            }
-            if let Some(c) = meets(next) {
-                len = next;
-                best = Some(c);
-                break;
-            }
-            missed = next;
-            jump *= 2;
-        }
-        // Bisect between `missed` (misses) and `len` (meets), keeping the parity.
-        while len - missed > step {
-            let mut mid = missed + (len - missed) / 2;
-            if step == 2 && mid % 2 != len % 2 {
-                mid += 1;
-            }
-            if mid >= len {
-                break;
-            }
-            match meets(mid) {
-                Some(c) => {
-                    len = mid;
-                    best = Some(c);
-                }
-                None => missed = mid,
-            }
-        }
-    }
-    let Some(mut best) = best else {
-        return Err(Failure::plain(
-            "design: the equiripple search found no design",
-        ));
-    };
-    while len >= 3 + step {
-        match meets(len - step) {
-            Some(shorter) => {
-                best = shorter;
-                len -= step;
-            }
-            None => break,
-        }
-    }
-    Ok(best)
 }
 
 fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
     let spec = chosen.spec;
     // With a length given: that one design, whatever it measures (the report says if it
-    // misses). Otherwise the shortest that meets the spec, then, for fixed point, the shortest
-    // whose quantized taps meet it, asking the float design for more attenuation in the same
-    // steps as the Kaiser path does.
-    let margins: &[f64] = match chosen.format {
-        Format::F32 => &[0.0],
-        _ => &[0.0, 0.5, 1.0, 2.0, 3.0, 4.0, 6.0, 9.0],
+    // misses). Otherwise the library's search: the shortest that meets the spec, and for fixed
+    // point the shortest whose quantized taps meet it.
+    let given = |e: DesignError| match (chosen.length, e) {
+        (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
+        (None, DesignError::SpecNotMet { taps }) => Failure::plain(format!(
+            "design: no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
+            chosen.format.name()
+        )),
+        (None, e) => library(e),
     };
-    let mut longest = 0;
-    for &margin_db in margins {
-        let stricter = Spec {
-            stopband_attenuation_db: spec.stopband_attenuation_db + margin_db,
-            ..spec
-        };
-        let (float, estimated_len) = match chosen.length {
-            Some(len) => (
-                equiripple_at(&chosen, &stricter, len)
-                    .map_err(|e| Failure::plain(format!("design: equiripple, {len} taps: {e}")))?,
-                None,
-            ),
-            None => (
-                shortest_equiripple(&chosen, &stricter)?,
-                Some(equiripple_estimate(&chosen, &stricter)),
-            ),
-        };
-        let float_measured = spec.measure(&float.taps).map_err(library)?;
-        let how = How::Equiripple {
-            estimated_len,
-            weighted_ripple: float.weighted_ripple,
-            iterations: float.iterations,
-        };
-        match chosen.format {
-            Format::F32 => {
-                let taps: Vec<f32> = float.taps.iter().map(|&h| h as f32).collect();
-                let measured = spec.measure(&taps).map_err(library)?;
-                return Ok(Designed {
-                    ideal: float.taps,
-                    float_measured,
-                    how,
-                    margin_db,
-                    taps: Taps::Float(taps),
-                    measured,
-                    proof: None,
-                    chosen,
-                });
+    let how = |float: &EquirippleDesign| How::Equiripple {
+        estimated_len: float.estimated_len,
+        weighted_ripple: float.design.weighted_ripple,
+        iterations: float.design.iterations,
+    };
+    match chosen.format {
+        Format::F32 => {
+            let float = match chosen.length {
+                Some(len) => spec.equiripple_at(len),
+                None => spec.shortest_equiripple(),
             }
-            Format::Q15 | Format::Q31 => {
-                let codes = Codes::quantize(&float.taps, chosen.format).map_err(library)?;
-                let measured = match &codes {
-                    Codes::Q15(c) => spec.measure(c),
-                    Codes::Q31(c) => spec.measure(c),
-                }
-                .map_err(library)?;
-                if measured.meets() || chosen.length.is_some() {
-                    return fixed(
-                        chosen,
-                        float.taps,
-                        float_measured,
-                        how,
-                        margin_db,
-                        codes,
-                        measured,
-                    );
-                }
-                longest = longest.max(float.taps.len());
-            }
+            .map_err(given)?;
+            let how = how(&float);
+            single(chosen, float.design.taps, float.measured, how)
+        }
+        Format::Q15 | Format::Q31 => {
+            // The float taps and figures, the codes and the quantized figures.
+            let (float, margin_db, codes, measured) = if chosen.format == Format::Q15 {
+                let d = spec.equiripple_fixed::<i16>(chosen.length).map_err(given)?;
+                (d.float, d.margin_db, Codes::Q15(d.taps), d.measured)
+            } else {
+                let d = spec.equiripple_fixed::<i32>(chosen.length).map_err(given)?;
+                (d.float, d.margin_db, Codes::Q31(d.taps), d.measured)
+            };
+            let how = how(&float);
+            fixed(
+                chosen,
+                float.design.taps,
+                float.measured,
+                how,
+                margin_db,
+                codes,
+                measured,
+            )
         }
     }
-    Err(Failure::plain(format!(
-        "design: no equiripple design (up to {} taps) meets the spec once quantized to {}: expected a coarser spec or a wider format",
-        longest,
-        chosen.format.name()
-    )))
 }
 
 impl Designed {
@@ -399,7 +231,7 @@ impl Designed {
     pub fn is_safe(&self) -> bool {
         self.proof
             .as_ref()
-            .is_none_or(|(h, _)| report::is_safe(h, Rounding::HalfUp))
+            .is_none_or(|(h, _)| h.is_safe(Rounding::HalfUp))
     }
 
     pub fn len(&self) -> usize {
@@ -411,11 +243,20 @@ impl Designed {
         (self.len() as f64 - 1.0) / 2.0
     }
 
-    fn meets(m: &Measured<f64>) -> &'static str {
+    /// The verdict, and where a transition band overshoots, by how much (the library's
+    /// [`Measured::meets`] decides; this only words it).
+    fn meets(m: &Measured<f64>) -> String {
         if m.meets() {
-            "meets the spec"
+            String::from("meets the spec")
+        } else if !m.transition_within() {
+            format!(
+                "misses the spec (transition band peaks at {:+.2} dB at {:.2} Hz, above the passband's limit {:+.2} dB)",
+                m.transition_peak_db(),
+                m.transition.max_at_hz,
+                20.0 * m.transition_limit().log10()
+            )
         } else {
-            "misses the spec"
+            String::from("misses the spec")
         }
     }
 
@@ -518,6 +359,8 @@ impl Designed {
                 "ripple_db": m.passband_ripple_db,
                 "attenuation_db": m.stopband_attenuation_db,
                 "worst_stopband_hz": m.stopband.max_at_hz,
+                "transition_peak_db": m.transition_peak_db(),
+                "transition_peak_hz": m.transition.max_at_hz,
                 "meets_spec": m.meets(),
             })
         };

@@ -1,12 +1,15 @@
 //! Tap tables in the formats the tool knows: Q15 and Q31 codes (fixed point, with a headroom
 //! analysis) and f32 (float; no headroom to prove).
 
-use crate::failure::Failure;
-use crate::table;
+use crate::design::DesignError;
+use crate::headroom::{Align, ErrorBound, Headroom, InputRange};
+use crate::tool::failure::Failure;
+use crate::tool::input::table;
+use crate::{Error, Rounding};
 use clap::ValueEnum;
 use std::path::Path;
-use tapline::headroom::{Align, ErrorBound, Headroom, InputRange};
-use tapline::{Error, Rounding};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
 
 /// The number format of a tap table.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -20,6 +23,7 @@ pub enum Format {
 }
 
 impl Format {
+    /// The format's name as the tool prints it (`Q15`, `Q31`, `f32`).
     pub fn name(self) -> &'static str {
         match self {
             Format::Q15 => "Q15",
@@ -48,6 +52,9 @@ pub enum Written {
 
 /// Output rounding, as the filters offer it.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+// No doc comments on these variants: clap would turn them into per-value help text and
+// change `--help`.
+#[allow(missing_docs)]
 pub enum RoundingArg {
     HalfUp,
     Truncate,
@@ -66,6 +73,9 @@ impl From<RoundingArg> for Rounding {
 
 /// Where an ADC's bits sit in the sample word.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+// No doc comments on these variants: clap would turn them into per-value help text and
+// change `--help`.
+#[allow(missing_docs)]
 pub enum AlignArg {
     Left,
     Right,
@@ -74,11 +84,17 @@ pub enum AlignArg {
 /// The ADC feeding the filter: `bits` (None: the whole sample word) and alignment.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct Adc {
+    /// ADC resolution in bits (None: the whole sample word).
     pub bits: Option<u32>,
+    /// Where the ADC's bits sit in the sample word.
     pub align: AlignArg,
 }
 
 impl Adc {
+    /// The input range of the ADC in a sample word of `word_bits` bits.
+    ///
+    /// # Errors
+    /// [`Error::InvalidRange`] for an impossible ADC (0 bits or more than the word).
     pub fn range(self, word_bits: u32) -> Result<InputRange, Error> {
         match self.bits {
             None => Ok(InputRange::FULL.within_word(word_bits)),
@@ -93,6 +109,7 @@ impl Adc {
         }
     }
 
+    /// The ADC in words, for reports (`12-bit ADC, right-aligned in 16 bits`).
     pub fn describe(self, word_bits: u32) -> String {
         match self.bits {
             None => format!("full {word_bits}-bit sample word"),
@@ -110,11 +127,14 @@ impl Adc {
 /// Fixed-point taps (raw codes) with, when known, the real values they stand for.
 #[derive(Debug, Clone)]
 pub enum Codes {
+    /// Q15 codes (15 fractional bits).
     Q15(Vec<i16>),
+    /// Q31 codes (31 fractional bits).
     Q31(Vec<i32>),
 }
 
 impl Codes {
+    /// The codes widened to `i64`, in tap order.
     pub fn raw(&self) -> Vec<i64> {
         match self {
             Codes::Q15(c) => c.iter().map(|&v| i64::from(v)).collect(),
@@ -122,6 +142,7 @@ impl Codes {
         }
     }
 
+    /// The number of taps.
     pub fn len(&self) -> usize {
         match self {
             Codes::Q15(c) => c.len(),
@@ -129,6 +150,12 @@ impl Codes {
         }
     }
 
+    /// Whether there are no taps (a table reader never returns such a table).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The library's headroom analysis of the codes for inputs in `input`.
     pub fn headroom(&self, input: InputRange) -> Headroom {
         match self {
             Codes::Q15(c) => Headroom::q15(c, input),
@@ -136,6 +163,10 @@ impl Codes {
         }
     }
 
+    /// The library's error bound against float64 of the codes standing in for `ideal`.
+    ///
+    /// # Errors
+    /// [`Error::TapCountMismatch`] if `ideal` has another length.
     pub fn error_bound(
         &self,
         ideal: &[f64],
@@ -149,16 +180,19 @@ impl Codes {
     }
 
     /// Quantizes real taps into `format` (Q15 or Q31).
-    pub fn quantize(ideal: &[f64], format: Format) -> Result<Codes, Error> {
+    ///
+    /// # Errors
+    /// As [`quantize`](crate::design::quantize).
+    pub fn quantize(ideal: &[f64], format: Format) -> Result<Codes, DesignError> {
         Ok(match format {
             Format::Q15 => {
                 let mut q = vec![0i16; ideal.len()];
-                tapline::design::quantize(ideal, &mut q)?;
+                crate::design::quantize(ideal, &mut q)?;
                 Codes::Q15(q)
             }
             Format::Q31 | Format::F32 => {
                 let mut q = vec![0i32; ideal.len()];
-                tapline::design::quantize(ideal, &mut q)?;
+                crate::design::quantize(ideal, &mut q)?;
                 Codes::Q31(q)
             }
         })
@@ -167,7 +201,9 @@ impl Codes {
 
 /// A table read from a file: the codes, and the real values if the file held real values.
 pub struct Table {
+    /// The codes the table holds (quantized when it held real values).
     pub codes: Codes,
+    /// The real values the table held (None when it held codes).
     pub ideal: Option<Vec<f64>>,
 }
 
@@ -210,7 +246,7 @@ pub fn read(path: &Path, format: Format, written: Written) -> Result<Table, Fail
                 ));
             }
             let codes = Codes::quantize(&ideal, format).map_err(|e| match e {
-                Error::TapOutOfRange { index, .. } => {
+                DesignError::TapOutOfRange { index, .. } => {
                     let (line, column) = fields.get(index).map_or((1, 1), |f| (f.line, f.column));
                     Failure::at(
                         path,

@@ -1,12 +1,16 @@
 //! What every subcommand hands back: text for a person, JSON for a program, and an exit status.
 
+use crate::Rounding;
+use crate::headroom::Headroom;
 use serde_json::{Value, json};
-use tapline::Rounding;
-use tapline::headroom::Headroom;
+use std::format;
+use std::prelude::rust_2024::*;
 
 /// A finished command's output.
 pub struct Report {
+    /// The report for a person, one fact a line.
     pub text: String,
+    /// The same report for a program.
     pub json: Value,
     /// 0: done and safe; 1: done, and the taps can overflow.
     pub status: u8,
@@ -18,12 +22,6 @@ pub fn wide(v: i128) -> Value {
         Ok(v) => json!(v),
         Err(_) => json!(v.to_string()),
     }
-}
-
-/// Whether the taps are safe: the default 64-bit accumulator holds every sum, and no input in
-/// range makes the output saturate.
-pub fn is_safe(h: &Headroom, rounding: Rounding) -> bool {
-    h.fits(64) && !h.can_saturate(rounding)
 }
 
 /// The headroom analysis as JSON.
@@ -48,7 +46,7 @@ pub fn headroom_json(h: &Headroom, rounding: Rounding) -> Value {
         "output_min": wide(out_lo),
         "output_max": wide(out_hi),
         "output_can_saturate": h.can_saturate(rounding),
-        "safe": is_safe(h, rounding),
+        "safe": h.is_safe(rounding),
     })
 }
 
@@ -71,7 +69,7 @@ pub fn headroom_text(h: &Headroom, rounding: Rounding) -> String {
             "cannot saturate"
         }
     ));
-    let verdict = if is_safe(h, rounding) {
+    let verdict = if h.is_safe(rounding) {
         "SAFE: no input in range can overflow the accumulator or saturate the output"
     } else if !h.fits(64) {
         "CAN OVERFLOW: the 64-bit accumulator is too narrow for some input in range"
@@ -82,11 +80,11 @@ pub fn headroom_text(h: &Headroom, rounding: Rounding) -> String {
     text
 }
 
+/// The rounding mode's name as the command line spells it.
 pub fn rounding_name(r: Rounding) -> &'static str {
     match r {
         Rounding::HalfUp => "half-up",
         Rounding::Truncate => "truncate",
         Rounding::HalfEven => "half-even",
-        _ => "other",
     }
 }

@@ -2,7 +2,9 @@
 //! pipe, a file or a CI log gets nothing). It redraws at most ten times a second and erases
 //! itself when done or dropped, so the report and any error start on a clean line.
 
+use std::format;
 use std::io::{IsTerminal, Write};
+use std::prelude::rust_2024::*;
 use std::time::{Duration, Instant};
 
 /// Width of the bar itself, in characters.

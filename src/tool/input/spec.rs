@@ -17,16 +17,21 @@
 //!                            # the shortest that meets the spec
 //! ```
 
-use crate::failure::{Failure, line_column};
-use crate::taps::{Adc, AlignArg, Format};
+use crate::design::{MAX_EQUIRIPPLE_TAPS, Shape, Spec};
+use crate::tool::failure::{Failure, line_column};
+use crate::tool::input::taps::{Adc, AlignArg, Format};
 use clap::{Args, ValueEnum};
 use serde::Deserialize;
+use std::format;
 use std::path::{Path, PathBuf};
-use tapline::design::{Shape, Spec};
+use std::prelude::rust_2024::*;
 use toml::Spanned;
 
 /// The band layout.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+// No doc comments on these variants: clap would turn them into per-value help text and
+// change `--help`.
+#[allow(missing_docs)]
 pub enum BandKind {
     Lowpass,
     Highpass,
@@ -39,6 +44,7 @@ impl BandKind {
         BandKind::from_str(text, true).ok()
     }
 
+    /// The band layout's name as the tool prints it.
     pub fn name(self) -> &'static str {
         match self {
             BandKind::Lowpass => "lowpass",
@@ -70,6 +76,7 @@ pub enum Method {
 }
 
 impl Method {
+    /// The method's name as the tool prints it.
     pub fn name(self) -> &'static str {
         match self {
             Method::Window => "window",
@@ -77,9 +84,6 @@ impl Method {
         }
     }
 }
-
-/// The longest equiripple design the library makes.
-pub const MAX_EQUIRIPPLE_TAPS: usize = 1024;
 
 /// The spec, as flags or as a file.
 #[derive(Args, Clone)]
@@ -132,11 +136,17 @@ pub struct SpecArgs {
 /// A checked spec and what it is for.
 #[derive(Debug, Clone)]
 pub struct Chosen {
+    /// The library's spec (sample rate, band edges, ripple, attenuation).
     pub spec: Spec<f64>,
+    /// The band layout as asked for.
     pub band: BandKind,
+    /// The band edges in Hz, in the order given.
     pub edges: Vec<f64>,
+    /// The tap format.
     pub format: Format,
+    /// The ADC feeding the filter.
     pub adc: Adc,
+    /// How the taps are designed.
     pub method: Method,
     /// Equiripple only: the length asked for (None: the shortest that meets the spec).
     pub length: Option<usize>,
@@ -362,11 +372,11 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
     let (attenuation, place) = &p.attenuation;
     if !(attenuation.is_finite()
         && *attenuation > 0.0
-        && *attenuation <= tapline::design::MAX_ATTENUATION_DB)
+        && *attenuation <= crate::design::MAX_ATTENUATION_DB)
     {
         return Err(place.fail(format!(
             "expected an attenuation in dB above 0 and at most {}, found {attenuation}",
-            tapline::design::MAX_ATTENUATION_DB
+            crate::design::MAX_ATTENUATION_DB
         )));
     }
     let word = p.format.word_bits();
@@ -380,32 +390,6 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
                 )));
             }
             u32::try_from(*bits).ok()
-        }
-    };
-    let length = match &p.length {
-        None => None,
-        Some((_, place)) if p.method != Method::Equiripple => {
-            return Err(place.fail(
-                "expected a length only with method equiripple (the Kaiser window design finds its own length)",
-            ));
-        }
-        Some((n, place)) => {
-            let max = MAX_EQUIRIPPLE_TAPS as i64;
-            if !(3..=max).contains(n) {
-                return Err(place.fail(format!(
-                    "expected an equiripple length in 3..={max} taps, found {n}"
-                )));
-            }
-            // Parks–McClellan here makes symmetric taps only; an even-length symmetric filter
-            // has a zero at fs/2, so a band that passes fs/2 needs an odd length.
-            let passes_half = matches!(p.band, BandKind::Highpass | BandKind::Bandstop);
-            if passes_half && n % 2 == 0 {
-                return Err(place.fail(format!(
-                    "expected an odd length for a {} with method equiripple, found {n}: its taps are symmetric, and even-length symmetric taps have a zero at fs/2",
-                    p.band.name()
-                )));
-            }
-            usize::try_from(*n).ok()
         }
     };
     let e: Vec<f64> = p.edges.iter().map(|(e, _)| *e).collect();
@@ -432,13 +416,39 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             pass_high_hz: edge(3),
         },
     };
+    let spec = Spec {
+        sample_rate_hz: *rate,
+        shape,
+        passband_ripple_db: *ripple,
+        stopband_attenuation_db: *attenuation,
+    };
+    let length = match &p.length {
+        None => None,
+        Some((_, place)) if p.method != Method::Equiripple => {
+            return Err(place.fail(
+                "expected a length only with method equiripple (the Kaiser window design finds its own length)",
+            ));
+        }
+        Some((n, place)) => {
+            let max = MAX_EQUIRIPPLE_TAPS as i64;
+            if !(3..=max).contains(n) {
+                return Err(place.fail(format!(
+                    "expected an equiripple length in 3..={max} taps, found {n}"
+                )));
+            }
+            // Parks–McClellan here makes symmetric taps only; an even-length symmetric filter
+            // has a zero at fs/2, so a band that passes fs/2 needs an odd length.
+            if spec.needs_odd() && n % 2 == 0 {
+                return Err(place.fail(format!(
+                    "expected an odd length for a {} with method equiripple, found {n}: its taps are symmetric, and even-length symmetric taps have a zero at fs/2",
+                    p.band.name()
+                )));
+            }
+            usize::try_from(*n).ok()
+        }
+    };
     Ok(Chosen {
-        spec: Spec {
-            sample_rate_hz: *rate,
-            shape,
-            passband_ripple_db: *ripple,
-            stopband_attenuation_db: *attenuation,
-        },
+        spec,
         band: p.band,
         edges: e,
         format: p.format,

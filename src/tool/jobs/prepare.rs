@@ -14,19 +14,21 @@
 //! when the taps are safe and every replayed output stayed within the error bound, 1 otherwise,
 //! 2 on bad input.
 
-use crate::atomic;
-use crate::capture::Pick;
-use crate::design::{self, Designed, Taps};
-use crate::failure::Failure;
-use crate::plot;
-use crate::replay::{self, Replayed};
-use crate::report::Report;
-use crate::spec::Chosen;
-use crate::taps::Format;
+use crate::Rounding;
+use crate::tool::failure::Failure;
+use crate::tool::input::capture::Pick;
+use crate::tool::input::spec::Chosen;
+use crate::tool::input::taps::Format;
+use crate::tool::jobs::design::{self, Designed, Taps};
+use crate::tool::jobs::plot;
+use crate::tool::jobs::replay::{self, Replayed};
+use crate::tool::output::atomic;
+use crate::tool::output::report::Report;
 use serde_json::json;
 use std::fmt::Write as _;
+use std::format;
 use std::path::{Path, PathBuf};
-use tapline::Rounding;
+use std::prelude::rust_2024::*;
 
 /// The files, in the order the report lists them, with what each holds.
 pub const FILES: [(&str, &str); 4] = [
@@ -118,6 +120,11 @@ fn job(r: &Request, d: &Designed, dir: &Path) -> Result<Report, Failure> {
         adc: d.chosen.adc,
         rounding: Rounding::HalfUp,
         out: Some(path("filtered.csv")),
+        // The design's own proof and bound, for the same half-up rounding.
+        known: match (&d.proof, d.input) {
+            (Some((headroom, bound)), Some(input)) => Some((input, *headroom, *bound)),
+            _ => None,
+        },
     })?;
     // Everything in memory first; then the files, each whole.
     let source = d.rust_source(&r.name, &r.command);

@@ -1,14 +1,16 @@
 //! `check`: the headroom of an existing tap table, for the ADC that feeds it.
 
-use crate::atomic;
-use crate::failure::Failure;
-use crate::report::{self, Report};
-use crate::taps::{self, Adc, Format, Written};
+use crate::Rounding;
+use crate::headroom::Extreme;
+use crate::tool::failure::Failure;
+use crate::tool::input::taps::{self, Adc, Format, Written};
+use crate::tool::output::atomic;
+use crate::tool::output::report::{self, Report};
 use serde_json::json;
 use std::fmt::Write;
+use std::format;
 use std::path::PathBuf;
-use tapline::Rounding;
-use tapline::headroom::Extreme;
+use std::prelude::rust_2024::*;
 
 pub struct Request {
     pub table: PathBuf,
@@ -92,7 +94,7 @@ pub fn run(r: &Request) -> Result<Report, Failure> {
     if let Some(path) = &r.worst_case {
         let _ = writeln!(text, "worst-case input written to {}", path.display());
     }
-    let safe = report::is_safe(&h, r.rounding);
+    let safe = h.is_safe(r.rounding);
     let json = json!({
         "command": "check",
         "table": r.table.display().to_string(),

@@ -2,14 +2,19 @@
 //! (CSV) or by spaces and tabs (plain text); blank lines and lines starting with `#` are skipped.
 //! Every data row must have as many fields as the first one.
 
-use crate::failure::Failure;
+use crate::tool::failure::Failure;
+use std::format;
 use std::path::Path;
+use std::prelude::rust_2024::*;
 
 /// One field: its text and where it starts (1-based line and column).
 #[derive(Debug, Clone)]
 pub struct Field {
+    /// The field as written, trimmed.
     pub text: String,
+    /// 1-based line of the field.
     pub line: usize,
+    /// 1-based column (in characters) where the field starts.
     pub column: usize,
 }
 
@@ -21,7 +26,7 @@ pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
         let (line, column) = {
             let good = e.utf8_error().valid_up_to();
             let prefix = String::from_utf8_lossy(e.as_bytes().get(..good).unwrap_or(&[]));
-            crate::failure::line_column(&prefix, good)
+            crate::tool::failure::line_column(&prefix, good)
         };
         Failure::at(path, line, column, "expected UTF-8 text")
     })?;
@@ -64,6 +69,7 @@ pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
     Ok(rows)
 }
 
+/// The fields of one line (`raw`, line number `line`): split at commas or whitespace.
 pub fn split(raw: &str, line: usize) -> Vec<Field> {
     let comma = raw.contains(',');
     let mut fields = Vec::new();

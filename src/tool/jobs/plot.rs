@@ -4,18 +4,20 @@
 //! limit, and the impulse response of the shipped taps. For a design from a spec, or for an
 //! existing tap table (with a spec to measure it against, or just a sample rate).
 
-use crate::atomic;
-use crate::design::{Designed, Taps};
-use crate::failure::Failure;
-use crate::report::{self, Report};
-use crate::spec::{BandKind, Chosen};
-use crate::taps::{Adc, Codes, Format};
+use crate::Rounding;
+use crate::design::{Measured, response_at};
+use crate::tool::failure::Failure;
+use crate::tool::input::spec::{BandKind, Chosen};
+use crate::tool::input::taps::{Adc, Codes, Format};
+use crate::tool::jobs::design::{Designed, Taps};
+use crate::tool::output::atomic;
+use crate::tool::output::report::Report;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
-use tapline::Rounding;
-use tapline::design::{Measured, response_at};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
 
 /// Frequencies evaluated across each axis.
 const POINTS: usize = 1500;
@@ -521,8 +523,12 @@ pub fn design_figure(d: &Designed) -> Figure<'_> {
     let c = &d.chosen;
     let format = c.format.name();
     let how = match &d.how {
-        crate::design::How::Window { beta, .. } => format!("Kaiser window (beta {beta:.3})"),
-        crate::design::How::Equiripple { .. } => String::from("equiripple (Parks-McClellan)"),
+        crate::tool::jobs::design::How::Window { beta, .. } => {
+            format!("Kaiser window (beta {beta:.3})")
+        }
+        crate::tool::jobs::design::How::Equiripple { .. } => {
+            String::from("equiripple (Parks-McClellan)")
+        }
     };
     let gd = d.group_delay_samples();
     let mut notes = vec![
@@ -542,7 +548,7 @@ pub fn design_figure(d: &Designed) -> Figure<'_> {
         notes.push(format!(
             "headroom ({}): {}; error bound vs float64 {:.2} LSB",
             c.adc.describe(c.format.word_bits()),
-            if report::is_safe(h, Rounding::HalfUp) {
+            if h.is_safe(Rounding::HalfUp) {
                 "SAFE"
             } else {
                 "CAN OVERFLOW"
@@ -650,7 +656,7 @@ pub fn plot_table(r: &TableRequest) -> Result<Report, Failure> {
             .range(word)
             .map_err(|e| Failure::argument("--adc-bits", format!("{e}: expected 1..={word}")))?;
         let h = codes.headroom(input);
-        let is_safe = report::is_safe(&h, Rounding::HalfUp);
+        let is_safe = h.is_safe(Rounding::HalfUp);
         safe = Some(is_safe);
         notes.push(format!(
             "headroom ({}): {}; sum |h| = {:.6}, DC gain = {:.6}",

@@ -4,10 +4,12 @@
 //! chosen by the names in a header row — one channel each. Every mistake is one line naming the
 //! file, line and column.
 
-use crate::failure::Failure;
+use crate::tool::failure::Failure;
+use std::format;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
+use std::prelude::rust_2024::*;
 
 /// Which columns hold the samples.
 #[derive(Debug, Clone)]

@@ -8,19 +8,21 @@
 //! Units: fixed-point errors are in LSB of the output word (= LSB of the input codes); f32
 //! errors are in the capture's own unit (ADC codes if it holds codes, volts if volts).
 
-use crate::atomic::Streaming;
-use crate::capture::{Capture, Kind, Pick};
-use crate::design::Taps;
-use crate::failure::Failure;
-use crate::progress::Bar;
-use crate::report::{self, Report};
-use crate::taps::{Adc, Codes, Format};
+use crate::headroom::{AccTrace, ErrorBound, Headroom, InputRange, f32_error_bound};
+use crate::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, RuntimeChecked};
+use crate::tool::failure::Failure;
+use crate::tool::input::capture::{Capture, Kind, Pick};
+use crate::tool::input::taps::{Adc, Codes, Format};
+use crate::tool::jobs::design::Taps;
+use crate::tool::output::atomic::Streaming;
+use crate::tool::output::progress::Bar;
+use crate::tool::output::report::{self, Report};
+use crate::{Error, Fir, Rounding, Sample};
 use serde_json::{Value, json};
 use std::fmt::Write as _;
 use std::path::PathBuf;
-use tapline::headroom::{AccTrace, Headroom, InputRange};
-use tapline::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, RuntimeChecked};
-use tapline::{Fir, Rounding};
+use std::prelude::rust_2024::*;
+use std::{format, vec};
 
 pub struct Request {
     pub capture: PathBuf,
@@ -35,6 +37,9 @@ pub struct Request {
     pub adc: Adc,
     pub rounding: Rounding,
     pub out: Option<PathBuf>,
+    /// Fixed point: the input range, headroom and error bound already worked out for these
+    /// taps and this rounding (by `prepare`'s design); None: replay works them out.
+    pub known: Option<(InputRange, Headroom, ErrorBound)>,
 }
 
 /// One channel's figures.
@@ -259,8 +264,9 @@ impl Replayed {
     }
 }
 
-/// One sample of one channel in, (output, saturated or non-finite) out.
-type Step<'f> = dyn FnMut(usize, f64) -> (f64, bool) + 'f;
+/// One sample of one channel in; the filter's output, whether it saturated (or came out
+/// non-finite), and the float64 reference's output out.
+type Step<'f> = dyn FnMut(usize, f64) -> (f64, bool, f64) + 'f;
 type Feed<'f> = dyn FnMut(&mut Step) -> Result<(), Failure> + 'f;
 
 /// The filter length used for `taps` taps: zero taps after the last one change no output, so a
@@ -275,8 +281,23 @@ fn too_long(n: usize) -> Failure {
     Failure::plain(format!("replay: expected at most 4096 taps, found {n}"))
 }
 
+/// `taps` followed by zeros up to `N`, on the heap (N can be 4096 taps of 8 bytes).
+fn padded<T: Copy, const N: usize>(taps: &[T], zero: T) -> Result<Box<[T; N]>, Failure> {
+    let mut padded: Box<[T; N]> = vec![zero; N]
+        .into_boxed_slice()
+        .try_into()
+        .map_err(|_| Failure::plain("replay: could not size the filter"))?;
+    for (slot, h) in padded.iter_mut().zip(taps) {
+        *slot = *h;
+    }
+    Ok(padded)
+}
+
+/// The filters of every channel, the firmware's and the float64 reference (the library's own
+/// `Fir` on `f64` taps), fed sample by sample.
 fn drive_fixed<S, W, const N: usize>(
     codes: &[S],
+    ideal: &[f64],
     rounding: Rounding,
     traces: &mut [AccTrace],
     feed: &mut Feed,
@@ -286,36 +307,43 @@ where
     S::Acc: Into<i128>,
     W: RuntimeChecked,
 {
-    let mut padded: Box<[S; N]> = vec![S::ZERO; N]
-        .into_boxed_slice()
-        .try_into()
-        .map_err(|_| Failure::plain("replay: could not size the filter"))?;
-    for (slot, c) in padded.iter_mut().zip(codes) {
-        *slot = *c;
-    }
+    let fixed_taps = padded::<S, N>(codes, S::ZERO)?;
+    let ideal_taps = padded::<f64, N>(ideal, 0.0)?;
+    let fail = |e: Error| Failure::plain(format!("replay: {e}"));
     let mut firs = Vec::with_capacity(traces.len());
+    let mut references = Vec::with_capacity(traces.len());
     for _ in 0..traces.len() {
         firs.push(
-            Fir::<S, N, S, W>::with_accumulator(&padded)
-                .map_err(|e| Failure::plain(format!("replay: {e}")))?
+            Fir::<S, N, S, W>::with_accumulator(&fixed_taps)
+                .map_err(fail)?
                 .with_rounding(rounding),
         );
+        references.push(Fir::<f64, N>::new(&ideal_taps).map_err(fail)?);
     }
     feed(&mut |channel: usize, x: f64| {
-        match (firs.get_mut(channel), traces.get_mut(channel)) {
-            (Some(fir), Some(trace)) => {
+        match (
+            firs.get_mut(channel),
+            references.get_mut(channel),
+            traces.get_mut(channel),
+        ) {
+            (Some(fir), Some(reference), Some(trace)) => {
                 let before = fir.saturations();
                 // Codes were range-checked as integers: the conversion is exact.
                 let y = fir.push_traced(S::from_raw(x as i64), trace);
-                (y.raw() as f64, fir.saturations() != before)
+                (
+                    y.raw() as f64,
+                    fir.saturations() != before,
+                    reference.push(x),
+                )
             }
-            _ => (f64::NAN, true),
+            _ => (f64::NAN, true, f64::NAN),
         }
     })
 }
 
 fn dispatch_fixed<S, W>(
     codes: &[S],
+    ideal: &[f64],
     rounding: Rounding,
     traces: &mut [AccTrace],
     feed: &mut Feed,
@@ -326,91 +354,62 @@ where
     W: RuntimeChecked,
 {
     match padded_len(codes.len()) {
-        Some(16) => drive_fixed::<S, W, 16>(codes, rounding, traces, feed),
-        Some(32) => drive_fixed::<S, W, 32>(codes, rounding, traces, feed),
-        Some(64) => drive_fixed::<S, W, 64>(codes, rounding, traces, feed),
-        Some(128) => drive_fixed::<S, W, 128>(codes, rounding, traces, feed),
-        Some(256) => drive_fixed::<S, W, 256>(codes, rounding, traces, feed),
-        Some(512) => drive_fixed::<S, W, 512>(codes, rounding, traces, feed),
-        Some(1024) => drive_fixed::<S, W, 1024>(codes, rounding, traces, feed),
-        Some(2048) => drive_fixed::<S, W, 2048>(codes, rounding, traces, feed),
-        Some(4096) => drive_fixed::<S, W, 4096>(codes, rounding, traces, feed),
+        Some(16) => drive_fixed::<S, W, 16>(codes, ideal, rounding, traces, feed),
+        Some(32) => drive_fixed::<S, W, 32>(codes, ideal, rounding, traces, feed),
+        Some(64) => drive_fixed::<S, W, 64>(codes, ideal, rounding, traces, feed),
+        Some(128) => drive_fixed::<S, W, 128>(codes, ideal, rounding, traces, feed),
+        Some(256) => drive_fixed::<S, W, 256>(codes, ideal, rounding, traces, feed),
+        Some(512) => drive_fixed::<S, W, 512>(codes, ideal, rounding, traces, feed),
+        Some(1024) => drive_fixed::<S, W, 1024>(codes, ideal, rounding, traces, feed),
+        Some(2048) => drive_fixed::<S, W, 2048>(codes, ideal, rounding, traces, feed),
+        Some(4096) => drive_fixed::<S, W, 4096>(codes, ideal, rounding, traces, feed),
         _ => Err(too_long(codes.len())),
     }
 }
 
 fn drive_float<const N: usize>(
     taps: &[f32],
+    ideal: &[f64],
     channels: usize,
     feed: &mut Feed,
 ) -> Result<(), Failure> {
-    let mut padded: Box<[f32; N]> = vec![0.0f32; N]
-        .into_boxed_slice()
-        .try_into()
-        .map_err(|_| Failure::plain("replay: could not size the filter"))?;
-    for (slot, h) in padded.iter_mut().zip(taps) {
-        *slot = *h;
-    }
+    let float_taps = padded::<f32, N>(taps, 0.0)?;
+    let ideal_taps = padded::<f64, N>(ideal, 0.0)?;
+    let fail = |e: Error| Failure::plain(format!("replay: {e}"));
     let mut firs = Vec::with_capacity(channels);
+    let mut references = Vec::with_capacity(channels);
     for _ in 0..channels {
-        firs.push(Fir::<f32, N>::new(&padded).map_err(|e| Failure::plain(format!("replay: {e}")))?);
+        firs.push(Fir::<f32, N>::new(&float_taps).map_err(fail)?);
+        references.push(Fir::<f64, N>::new(&ideal_taps).map_err(fail)?);
     }
-    feed(&mut |channel: usize, x: f64| match firs.get_mut(channel) {
-        Some(fir) => {
-            let y = fir.push(x as f32);
-            (f64::from(y), !y.is_finite())
-        }
-        None => (f64::NAN, true),
-    })
+    feed(
+        &mut |channel: usize, x: f64| match (firs.get_mut(channel), references.get_mut(channel)) {
+            (Some(fir), Some(reference)) => {
+                let y = fir.push(x as f32);
+                (f64::from(y), !y.is_finite(), reference.push(x))
+            }
+            _ => (f64::NAN, true, f64::NAN),
+        },
+    )
 }
 
-fn dispatch_float(taps: &[f32], channels: usize, feed: &mut Feed) -> Result<(), Failure> {
+fn dispatch_float(
+    taps: &[f32],
+    ideal: &[f64],
+    channels: usize,
+    feed: &mut Feed,
+) -> Result<(), Failure> {
     match padded_len(taps.len()) {
-        Some(16) => drive_float::<16>(taps, channels, feed),
-        Some(32) => drive_float::<32>(taps, channels, feed),
-        Some(64) => drive_float::<64>(taps, channels, feed),
-        Some(128) => drive_float::<128>(taps, channels, feed),
-        Some(256) => drive_float::<256>(taps, channels, feed),
-        Some(512) => drive_float::<512>(taps, channels, feed),
-        Some(1024) => drive_float::<1024>(taps, channels, feed),
-        Some(2048) => drive_float::<2048>(taps, channels, feed),
-        Some(4096) => drive_float::<4096>(taps, channels, feed),
+        Some(16) => drive_float::<16>(taps, ideal, channels, feed),
+        Some(32) => drive_float::<32>(taps, ideal, channels, feed),
+        Some(64) => drive_float::<64>(taps, ideal, channels, feed),
+        Some(128) => drive_float::<128>(taps, ideal, channels, feed),
+        Some(256) => drive_float::<256>(taps, ideal, channels, feed),
+        Some(512) => drive_float::<512>(taps, ideal, channels, feed),
+        Some(1024) => drive_float::<1024>(taps, ideal, channels, feed),
+        Some(2048) => drive_float::<2048>(taps, ideal, channels, feed),
+        Some(4096) => drive_float::<4096>(taps, ideal, channels, feed),
         _ => Err(too_long(taps.len())),
-    }
-}
-
-/// The float64 reference of one channel: the last N samples twice over, so the newest N are
-/// always one contiguous slice (newest first, meeting h[0]).
-struct Reference {
-    history: Vec<f64>,
-    head: usize,
-    len: usize,
-}
-
-impl Reference {
-    fn new(len: usize) -> Reference {
-        Reference {
-            history: vec![0.0; 2 * len.max(1)],
-            head: 0,
-            len: len.max(1),
-        }
-    }
-
-    fn push(&mut self, x: f64, taps: &[f64]) -> f64 {
-        self.head = if self.head == 0 {
-            self.len - 1
-        } else {
-            self.head - 1
-        };
-        let (head, len) = (self.head, self.len);
-        if let Some(slot) = self.history.get_mut(head) {
-            *slot = x;
-        }
-        if let Some(slot) = self.history.get_mut(head + len) {
-            *slot = x;
-        }
-        let window = self.history.get(head..head + len).unwrap_or(&[]);
-        taps.iter().zip(window).map(|(h, x)| h * x).sum()
     }
 }
 
@@ -420,19 +419,25 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     let word = r.format.word_bits();
     let (kind, headroom, bound) = match &r.taps {
         Taps::Fixed(codes) => {
-            let input = r.adc.range(word).map_err(|e| {
-                Failure::argument("--adc-bits", format!("{e}: expected 1..={word}"))
-            })?;
-            let bound = codes
-                .error_bound(&r.ideal, input, r.rounding)
-                .map_err(Failure::plain)?;
+            let (input, headroom, bound) = match r.known {
+                Some(known) => known,
+                None => {
+                    let input = r.adc.range(word).map_err(|e| {
+                        Failure::argument("--adc-bits", format!("{e}: expected 1..={word}"))
+                    })?;
+                    let bound = codes
+                        .error_bound(&r.ideal, input, r.rounding)
+                        .map_err(Failure::plain)?;
+                    (input, codes.headroom(input), bound)
+                }
+            };
             (
                 Kind::Codes {
                     min: input.min(),
                     max: input.max(),
                     what: r.adc.describe(word),
                 },
-                Some((codes.headroom(input), input)),
+                Some((headroom, input)),
                 Some(bound.lsb()),
             )
         }
@@ -474,14 +479,9 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
             ..Channel::default()
         })
         .collect();
-    let mut references: Vec<Reference> = names
-        .iter()
-        .map(|_| Reference::new(r.ideal.len()))
-        .collect();
     let mut traces = vec![AccTrace::new(); names.len()];
     let mut samples = 0u64;
     let mut bar = Bar::new("replay", capture.total_bytes);
-    let ideal = &r.ideal;
     let float = r.format == Format::F32;
     let mut feed = |step: &mut Step| -> Result<(), Failure> {
         let mut row: Vec<f64> = Vec::with_capacity(channels.len());
@@ -490,12 +490,10 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
             line.clear();
             let _ = write!(line, "{samples}");
             for (k, &x) in row.iter().enumerate() {
-                let (y, saturated) = step(k, x);
-                let (Some(c), Some(reference)) = (channels.get_mut(k), references.get_mut(k))
-                else {
+                let (y, saturated, reference) = step(k, x);
+                let Some(c) = channels.get_mut(k) else {
                     continue;
                 };
-                let reference = reference.push(x, ideal);
                 let error = y - reference;
                 c.signal += reference * reference;
                 c.noise += error * error;
@@ -533,13 +531,13 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     };
     match &r.taps {
         Taps::Fixed(Codes::Q15(c)) => {
-            dispatch_fixed::<i16, DefaultAcc>(c, r.rounding, &mut traces, &mut feed)?
+            dispatch_fixed::<i16, DefaultAcc>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
         }
         // Acc128 is exact for any Q31 table, and bit-identical to i64 where that fits.
         Taps::Fixed(Codes::Q31(c)) => {
-            dispatch_fixed::<i32, Acc128>(c, r.rounding, &mut traces, &mut feed)?
+            dispatch_fixed::<i32, Acc128>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
         }
-        Taps::Float(t) => dispatch_float(t, names.len(), &mut feed)?,
+        Taps::Float(t) => dispatch_float(t, &r.ideal, names.len(), &mut feed)?,
     }
     drop(bar);
     for (c, t) in channels.iter_mut().zip(traces) {
@@ -549,7 +547,7 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
         (_, Some(b)) => b,
         (Taps::Float(t), None) => {
             let largest = channels.iter().fold(0.0f64, |m, c| m.max(c.max_abs_input));
-            f32_bound(&r.ideal, t, largest)
+            f32_error_bound(&r.ideal, t, largest)
         }
         (Taps::Fixed(_), None) => 0.0,
     };
@@ -570,41 +568,10 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     ))
 }
 
-/// γ_n = n·u/(1 − n·u): the relative error bound of an n-term dot product in floating point
-/// with unit roundoff u (N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd
-/// ed., 2002, §3.1).
-fn gamma(n: usize, u: f64) -> f64 {
-    let nu = n as f64 * u;
-    nu / (1.0 - nu)
-}
-
-/// The largest |f32 output − float64 reference| for inputs up to `largest` in magnitude: the
-/// taps' rounding to f32 (Σ|h32 − h|·|x32|), the samples' rounding to f32 (Σ|h|·u·|x|), the
-/// f32 dot product (γ_N(2⁻²⁴)·Σ|h32|·|x32|) and the f64 reference's own (γ_N(2⁻⁵³)·Σ|h|·|x|),
-/// with |x32| ≤ (1 + u)·|x|.
-pub fn f32_bound(ideal: &[f64], taps: &[f32], largest: f64) -> f64 {
-    let u32 = f64::powi(2.0, -24);
-    let u64 = f64::powi(2.0, -53);
-    let n = ideal.len();
-    let x32 = largest * (1.0 + u32);
-    let taps_rounding: f64 = ideal
-        .iter()
-        .zip(taps)
-        .map(|(h, t)| (f64::from(*t) - h).abs())
-        .sum();
-    let sum_h: f64 = ideal.iter().map(|h| h.abs()).sum();
-    let sum_h32: f64 = taps.iter().map(|t| f64::from(*t).abs()).sum();
-    taps_rounding * x32
-        + sum_h * u32 * largest
-        + gamma(n, u32) * sum_h32 * x32
-        + gamma(n, u64) * sum_h * largest
-}
-
 /// The float taps a table's codes stand for (the reference when the table held codes).
-pub fn codes_as_reals(codes: &Codes, format: Format) -> Vec<f64> {
-    let scale = match format {
-        Format::Q15 => f64::from(1u32 << 15),
-        _ => f64::from(1u32 << 31),
-    };
-    codes.raw().iter().map(|&c| c as f64 / scale).collect()
+pub fn codes_as_reals(codes: &Codes) -> Vec<f64> {
+    match codes {
+        Codes::Q15(c) => c.iter().map(|h| h.to_f64()).collect(),
+        Codes::Q31(c) => c.iter().map(|h| h.to_f64()).collect(),
+    }
 }

@@ -3,7 +3,9 @@
 //! `check` reports it and exits 1.
 
 use std::fmt;
+use std::format;
 use std::path::Path;
+use std::prelude::rust_2024::*;
 
 /// A one-line reason the command could not do its work.
 #[derive(Debug)]

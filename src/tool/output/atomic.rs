@@ -2,10 +2,12 @@
 //! flushed, then renamed over the target (a rename within one directory is atomic on POSIX file
 //! systems). A failure on the way removes the temporary file.
 
-use crate::failure::Failure;
+use crate::tool::failure::Failure;
+use std::format;
 use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
+use std::prelude::rust_2024::*;
 
 /// Writes `contents` to `path` atomically.
 pub fn write(path: &Path, contents: &[u8]) -> Result<(), Failure> {
