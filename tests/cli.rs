@@ -1401,24 +1401,16 @@ fn f32_replay_counts_a_sample_beyond_f32_only_while_the_taps_see_it() {
         capture.push_str(if i == 10 { "1e39\n" } else { "1.0\n" });
     }
     write(dir.path(), "huge.csv", &capture);
-    let out = tool(
-        &[
-            "replay",
-            "huge.csv",
-            "--taps",
-            "taps.txt",
-            "--format",
-            "f32",
-            "--channels",
-            "v",
-            "--json",
-        ],
-        dir.path(),
-    );
-    assert_eq!(status(&out), 1, "{}", stderr(&out));
+    let args = "replay huge.csv --taps taps.txt --format f32 --channels v --json";
+    let out = tool(&args.split(' ').collect::<Vec<_>>(), dir.path());
     let v = json(&out);
-    assert_eq!(v["saturated"], 5, "{v}");
-    assert_eq!(v["samples"], 200, "{v}");
+    assert_eq!(
+        (v["samples"].as_u64(), v["saturated"].as_u64()),
+        (Some(200), Some(5)),
+        "{v}"
+    );
+    // Non-finite outputs make the replay's exit status 1.
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
 }
 
 #[test]
