@@ -1390,6 +1390,30 @@ fn replay_in_f32_reports_errors_in_the_capture_unit_within_the_bound() {
 }
 
 #[test]
+fn f32_replay_counts_a_sample_beyond_f32_only_while_the_taps_see_it() {
+    // Invented capture: 1e39 is finite as f64 but infinite once rounded to f32 (f32::MAX is
+    // about 3.4e38). By the definition of an FIR filter, an input reaches exactly as many
+    // outputs as the filter has taps: five here, whatever capacity the tool runs them in.
+    let dir = scratch();
+    write(dir.path(), "taps.txt", "0.2\n0.2\n0.2\n0.2\n0.2\n");
+    let mut capture = String::from("v\n");
+    for i in 0..200 {
+        capture.push_str(if i == 10 { "1e39\n" } else { "1.0\n" });
+    }
+    write(dir.path(), "huge.csv", &capture);
+    let args = "replay huge.csv --taps taps.txt --format f32 --channels v --json";
+    let out = tool(&args.split(' ').collect::<Vec<_>>(), dir.path());
+    let v = json(&out);
+    assert_eq!(
+        (v["samples"].as_u64(), v["saturated"].as_u64()),
+        (Some(200), Some(5)),
+        "{v}"
+    );
+    // Non-finite outputs make the replay's exit status 1.
+    assert_eq!(status(&out), 1, "{}", stderr(&out));
+}
+
+#[test]
 fn replay_of_an_f32_spec_design() {
     let dir = scratch();
     let spec = fs::read_to_string(repo().join(SILO_SPEC)).unwrap_or_default();

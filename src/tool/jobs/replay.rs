@@ -13,11 +13,11 @@ use crate::num::{Acc128, DefaultAcc, FixedPoint, MulAcc, RuntimeChecked};
 use crate::tool::failure::Failure;
 use crate::tool::input::capture::{Capture, Kind, Pick};
 use crate::tool::input::taps::{Adc, Codes, Format};
-use crate::tool::jobs::design::Taps;
+use crate::tool::jobs::design::{MAX_TAPS, Taps};
 use crate::tool::output::atomic::Streaming;
 use crate::tool::output::progress::Bar;
 use crate::tool::output::report::{self, Report};
-use crate::{Error, Fir, Rounding, Sample};
+use crate::{Error, FirUpTo, Rounding, Sample};
 use serde_json::{Value, json};
 use std::fmt::Write as _;
 use std::path::PathBuf;
@@ -269,33 +269,42 @@ impl Replayed {
 type Step<'f> = dyn FnMut(usize, f64) -> (f64, bool, f64) + 'f;
 type Feed<'f> = dyn FnMut(&mut Step) -> Result<(), Failure> + 'f;
 
-/// The filter length used for `taps` taps: zero taps after the last one change no output, so a
-/// few lengths serve every table.
-fn padded_len(taps: usize) -> Option<usize> {
-    [16, 32, 64, 128, 256, 512, 1024, 2048, 4096]
-        .into_iter()
-        .find(|&n| n >= taps)
-}
+/// The longest tap table replay runs, and so the one capacity of its filters: the taps run at
+/// their own length within it ([`FirUpTo`]), so a capacity above the table's length costs
+/// memory (the history holds twice the capacity), not time.
+pub const MAX_REPLAY_TAPS: usize = 4096;
 
-fn too_long(n: usize) -> Failure {
-    Failure::plain(format!("replay: expected at most 4096 taps, found {n}"))
-}
+// Every design the tool makes (and `prepare` replays) fits.
+const _: () = assert!(MAX_TAPS <= MAX_REPLAY_TAPS);
 
-/// `taps` followed by zeros up to `N`, on the heap (N can be 4096 taps of 8 bytes).
-fn padded<T: Copy, const N: usize>(taps: &[T], zero: T) -> Result<Box<[T; N]>, Failure> {
-    let mut padded: Box<[T; N]> = vec![zero; N]
-        .into_boxed_slice()
-        .try_into()
-        .map_err(|_| Failure::plain("replay: could not size the filter"))?;
-    for (slot, h) in padded.iter_mut().zip(taps) {
-        *slot = *h;
-    }
-    Ok(padded)
+/// One channel's filter at replay's capacity, on the heap: its history of 2 × 4096 samples is
+/// 64 KiB for `f64`.
+type Boxed<'t, S, W = DefaultAcc> = Box<FirUpTo<'t, S, MAX_REPLAY_TAPS, S, W>>;
+
+/// One filter per channel on `taps`, each with its own history (floats ignore `rounding`).
+fn per_channel<'t, S, W>(
+    taps: &'t [S],
+    rounding: Rounding,
+    channels: usize,
+) -> Result<Vec<Boxed<'t, S, W>>, Failure>
+where
+    S: MulAcc<S, W>,
+    W: RuntimeChecked,
+{
+    (0..channels)
+        .map(|_| match FirUpTo::with_taps(taps) {
+            Ok(fir) => Ok(Box::new(fir.with_rounding(rounding))),
+            Err(Error::TooManyTaps { capacity, found }) => Err(Failure::plain(format!(
+                "replay: expected at most {capacity} taps, found {found}"
+            ))),
+            Err(e) => Err(Failure::plain(format!("replay: {e}"))),
+        })
+        .collect()
 }
 
 /// The filters of every channel, the firmware's and the float64 reference (the library's own
 /// `Fir` on `f64` taps), fed sample by sample.
-fn drive_fixed<S, W, const N: usize>(
+fn drive_fixed<S, W>(
     codes: &[S],
     ideal: &[f64],
     rounding: Rounding,
@@ -307,19 +316,8 @@ where
     S::Acc: Into<i128>,
     W: RuntimeChecked,
 {
-    let fixed_taps = padded::<S, N>(codes, S::ZERO)?;
-    let ideal_taps = padded::<f64, N>(ideal, 0.0)?;
-    let fail = |e: Error| Failure::plain(format!("replay: {e}"));
-    let mut firs = Vec::with_capacity(traces.len());
-    let mut references = Vec::with_capacity(traces.len());
-    for _ in 0..traces.len() {
-        firs.push(
-            Fir::<S, N, S, W>::with_accumulator(&fixed_taps)
-                .map_err(fail)?
-                .with_rounding(rounding),
-        );
-        references.push(Fir::<f64, N>::new(&ideal_taps).map_err(fail)?);
-    }
+    let mut firs = per_channel::<S, W>(codes, rounding, traces.len())?;
+    let mut references = per_channel::<f64, DefaultAcc>(ideal, rounding, traces.len())?;
     feed(&mut |channel: usize, x: f64| {
         match (
             firs.get_mut(channel),
@@ -341,47 +339,14 @@ where
     })
 }
 
-fn dispatch_fixed<S, W>(
-    codes: &[S],
-    ideal: &[f64],
-    rounding: Rounding,
-    traces: &mut [AccTrace],
-    feed: &mut Feed,
-) -> Result<(), Failure>
-where
-    S: MulAcc<S, W> + FixedPoint,
-    S::Acc: Into<i128>,
-    W: RuntimeChecked,
-{
-    match padded_len(codes.len()) {
-        Some(16) => drive_fixed::<S, W, 16>(codes, ideal, rounding, traces, feed),
-        Some(32) => drive_fixed::<S, W, 32>(codes, ideal, rounding, traces, feed),
-        Some(64) => drive_fixed::<S, W, 64>(codes, ideal, rounding, traces, feed),
-        Some(128) => drive_fixed::<S, W, 128>(codes, ideal, rounding, traces, feed),
-        Some(256) => drive_fixed::<S, W, 256>(codes, ideal, rounding, traces, feed),
-        Some(512) => drive_fixed::<S, W, 512>(codes, ideal, rounding, traces, feed),
-        Some(1024) => drive_fixed::<S, W, 1024>(codes, ideal, rounding, traces, feed),
-        Some(2048) => drive_fixed::<S, W, 2048>(codes, ideal, rounding, traces, feed),
-        Some(4096) => drive_fixed::<S, W, 4096>(codes, ideal, rounding, traces, feed),
-        _ => Err(too_long(codes.len())),
-    }
-}
-
-fn drive_float<const N: usize>(
+fn drive_float(
     taps: &[f32],
     ideal: &[f64],
     channels: usize,
     feed: &mut Feed,
 ) -> Result<(), Failure> {
-    let float_taps = padded::<f32, N>(taps, 0.0)?;
-    let ideal_taps = padded::<f64, N>(ideal, 0.0)?;
-    let fail = |e: Error| Failure::plain(format!("replay: {e}"));
-    let mut firs = Vec::with_capacity(channels);
-    let mut references = Vec::with_capacity(channels);
-    for _ in 0..channels {
-        firs.push(Fir::<f32, N>::new(&float_taps).map_err(fail)?);
-        references.push(Fir::<f64, N>::new(&ideal_taps).map_err(fail)?);
-    }
+    let mut firs = per_channel::<f32, DefaultAcc>(taps, Rounding::default(), channels)?;
+    let mut references = per_channel::<f64, DefaultAcc>(ideal, Rounding::default(), channels)?;
     feed(
         &mut |channel: usize, x: f64| match (firs.get_mut(channel), references.get_mut(channel)) {
             (Some(fir), Some(reference)) => {
@@ -391,26 +356,6 @@ fn drive_float<const N: usize>(
             _ => (f64::NAN, true, f64::NAN),
         },
     )
-}
-
-fn dispatch_float(
-    taps: &[f32],
-    ideal: &[f64],
-    channels: usize,
-    feed: &mut Feed,
-) -> Result<(), Failure> {
-    match padded_len(taps.len()) {
-        Some(16) => drive_float::<16>(taps, ideal, channels, feed),
-        Some(32) => drive_float::<32>(taps, ideal, channels, feed),
-        Some(64) => drive_float::<64>(taps, ideal, channels, feed),
-        Some(128) => drive_float::<128>(taps, ideal, channels, feed),
-        Some(256) => drive_float::<256>(taps, ideal, channels, feed),
-        Some(512) => drive_float::<512>(taps, ideal, channels, feed),
-        Some(1024) => drive_float::<1024>(taps, ideal, channels, feed),
-        Some(2048) => drive_float::<2048>(taps, ideal, channels, feed),
-        Some(4096) => drive_float::<4096>(taps, ideal, channels, feed),
-        _ => Err(too_long(taps.len())),
-    }
 }
 
 /// Streams the capture. The output file, if any, is handed back still uncommitted: the caller
@@ -531,13 +476,13 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     };
     match &r.taps {
         Taps::Fixed(Codes::Q15(c)) => {
-            dispatch_fixed::<i16, DefaultAcc>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
+            drive_fixed::<i16, DefaultAcc>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
         }
         // Acc128 is exact for any Q31 table, and bit-identical to i64 where that fits.
         Taps::Fixed(Codes::Q31(c)) => {
-            dispatch_fixed::<i32, Acc128>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
+            drive_fixed::<i32, Acc128>(c, &r.ideal, r.rounding, &mut traces, &mut feed)?
         }
-        Taps::Float(t) => dispatch_float(t, &r.ideal, names.len(), &mut feed)?,
+        Taps::Float(t) => drive_float(t, &r.ideal, names.len(), &mut feed)?,
     }
     drop(bar);
     for (c, t) in channels.iter_mut().zip(traces) {
