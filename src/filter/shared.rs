@@ -160,6 +160,28 @@ pub(crate) fn history_dot_strided<S: MulAcc<T, W>, T: Sample, W, const N: usize>
     dot_reversed_strided::<S, T, W>(acc, taps, tap_step, window, x_step)
 }
 
+/// Whether each phase of `taps` taken with stride `step` (the taps p, p + step, p + 2·step, …
+/// for every p < step) fits the accumulator for any full-range input
+/// ([`MulAcc::accumulator_fits`]): a polyphase structure sums one phase per output. `N` bounds
+/// a phase's length (longer phases are checked on their first `N` taps, all a history of `N`
+/// reaches).
+pub(crate) fn phases_fit<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
+    taps: &[T],
+    step: usize,
+) -> bool {
+    let step = step.max(1);
+    let mut phase_taps = [T::ZERO; N];
+    (0..step.min(taps.len())).all(|p| {
+        let mut count = 0;
+        let phase = taps.get(p..).unwrap_or(&[]).iter().step_by(step);
+        for (slot, &h) in phase_taps.iter_mut().zip(phase) {
+            *slot = h;
+            count += 1;
+        }
+        S::accumulator_fits(phase_taps.get(..count).unwrap_or(&[]))
+    })
+}
+
 /// The folded linear-phase sum over a full history of N samples, h = `taps` (length N):
 /// Σ_{k<⌊N/2⌋} h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) plus, for odd N and [`Fold::Sum`], the centre
 /// term h\[c\]·x\[n−c\], c = (N−1)/2. (Antisymmetric taps have a zero centre, which is skipped.)
