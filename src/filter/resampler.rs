@@ -7,7 +7,7 @@ use super::shared::{OutputStep, history_dot_strided, output_controls, phases_fit
 use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
-use core::num::NonZeroU128;
+use core::num::{NonZeroU16, NonZeroU128, NonZeroUsize};
 
 /// A polyphase rational resampler: the input rate times `L/M`, with prototype taps h (K of
 /// them, at the up-sampled rate L·f_in) and a history [`Ring`] of capacity `C` input samples,
@@ -66,7 +66,8 @@ pub struct Resampler<'a, S: MulAcc<T, W>, const C: usize, T: Sample = S, W = Def
     taps: &'a [T],
     history: Ring<S, C>,
     up: usize,
-    down: usize,
+    // Non-zero in the type, so the divisions by M carry no divide-by-zero panic path.
+    down: NonZeroU16,
     /// The up-sampled index of the next output, counted from the up-sampled position of the
     /// next input (0 ≤ · < M between calls): it is the phase p when it falls below L.
     next: usize,
@@ -124,8 +125,10 @@ impl<'a, S: MulAcc<T, W>, const C: usize, T: Sample, W: RuntimeChecked> Resample
     /// # Ok::<(), tapline::Error>(())
     /// ```
     pub fn with_accumulator(taps: &'a [T], up: u16, down: u16) -> Result<Self, Error> {
-        let (up, down) = (usize::from(up), usize::from(down));
-        if up == 0 || down == 0 {
+        let (up, Some(down)) = (usize::from(up), NonZeroU16::new(down)) else {
+            return Err(Error::ZeroFactor);
+        };
+        if up == 0 {
             return Err(Error::ZeroFactor);
         }
         if taps.is_empty() {
@@ -184,7 +187,7 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
             let acc =
                 history_dot_strided::<S, T, W, C>(S::ACC_ZERO, &self.history, phase, self.up, 0, 1);
             emit(self.output.finish::<S, T, W>(acc));
-            self.next += self.down;
+            self.next += usize::from(self.down.get());
             produced += 1;
         }
         self.next -= self.up;
@@ -252,9 +255,7 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
         // of two usizes overflows.
         let span = (len as u128) * (self.up as u128);
         let next = self.next as u128;
-        let Some(down) = NonZeroU128::new(self.down as u128) else {
-            return 0;
-        };
+        let down = NonZeroU128::from(self.down);
         if span <= next {
             return 0;
         }
@@ -271,8 +272,9 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
     /// # Ok::<(), tapline::Error>(())
     /// ```
     #[must_use]
-    pub const fn max_outputs_per_input(&self) -> usize {
-        self.up.div_ceil(self.down)
+    pub fn max_outputs_per_input(&self) -> usize {
+        let down = NonZeroUsize::from(self.down);
+        (self.up + down.get() - 1) / down
     }
 
     /// Zero history, phase 0 (the next input produces y\[0\] again), zero saturation count;
@@ -303,8 +305,8 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
     /// # Ok::<(), tapline::Error>(())
     /// ```
     #[must_use]
-    pub const fn factors(&self) -> (usize, usize) {
-        (self.up, self.down)
+    pub fn factors(&self) -> (usize, usize) {
+        (self.up, usize::from(self.down.get()))
     }
 
     /// The group delay in *up-sampled* samples (rate L·f_in), (K−1)/2, when the taps are
