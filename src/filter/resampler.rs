@@ -3,7 +3,7 @@
 //! real inputs per output, never the zero products nor the outputs that would be dropped.
 
 use super::GroupDelay;
-use super::shared::{OutputStep, history_dot_strided, output_controls, phases_fit};
+use super::shared::{OutputStep, fill_block, history_dot_strided, output_controls, phases_fit};
 use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
@@ -216,21 +216,9 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
     /// ```
     pub fn process(&mut self, input: &[S], output: &mut [S]) -> Result<usize, Error> {
         let needed = self.outputs_for(input.len());
-        if output.len() < needed {
-            return Err(Error::OutputTooShort {
-                needed,
-                found: output.len(),
-            });
-        }
-        let mut slots = output.iter_mut();
-        for &x in input {
-            self.push(x, |y| {
-                if let Some(slot) = slots.next() {
-                    *slot = y;
-                }
-            });
-        }
-        Ok(needed)
+        fill_block(input, output, needed, |x, slots| {
+            self.push(x, |y| slots.put(y));
+        })
     }
 
     /// How many outputs the next `len` inputs produce, given the current phase (stops at

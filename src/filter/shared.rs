@@ -249,13 +249,28 @@ impl<const M: usize> Phase<M> {
     }
 }
 
-/// Runs `push` over `input`, writing each `Some` output in turn to `output`, after checking once
-/// that `output` holds the `needed` outputs. Returns how many were written.
-pub(crate) fn decimate_block<S: Copy, Y>(
+/// The front of a block call's output buffer, filled in turn: what a structure that produces
+/// several outputs per input hands each of them to.
+pub(crate) struct Slots<'o, Y>(core::slice::IterMut<'o, Y>);
+
+impl<Y> Slots<'_, Y> {
+    /// Writes `y` to the next slot (the caller checked the room beforehand).
+    #[inline(always)]
+    pub(crate) fn put(&mut self, y: Y) {
+        if let Some(slot) = self.0.next() {
+            *slot = y;
+        }
+    }
+}
+
+/// Runs `feed` over `input`, each call writing its outputs in turn to the front of `output`
+/// through the [`Slots`], after checking once that `output` holds the `needed` outputs. Returns
+/// how many were written.
+pub(crate) fn fill_block<S: Copy, Y>(
     input: &[S],
     output: &mut [Y],
     needed: usize,
-    mut push: impl FnMut(S) -> Option<Y>,
+    mut feed: impl FnMut(S, &mut Slots<'_, Y>),
 ) -> Result<usize, Error> {
     if output.len() < needed {
         return Err(Error::OutputTooShort {
@@ -263,15 +278,25 @@ pub(crate) fn decimate_block<S: Copy, Y>(
             found: output.len(),
         });
     }
-    let mut slots = output.iter_mut();
+    let mut slots = Slots(output.iter_mut());
     for &x in input {
-        if let Some(y) = push(x) {
-            if let Some(slot) = slots.next() {
-                *slot = y;
-            }
-        }
+        feed(x, &mut slots);
     }
     Ok(needed)
+}
+
+/// [`fill_block`] for a structure whose `push` gives at most one output per input.
+pub(crate) fn decimate_block<S: Copy, Y>(
+    input: &[S],
+    output: &mut [Y],
+    needed: usize,
+    mut push: impl FnMut(S) -> Option<Y>,
+) -> Result<usize, Error> {
+    fill_block(input, output, needed, |x, slots| {
+        if let Some(y) = push(x) {
+            slots.put(y);
+        }
+    })
 }
 
 /// Runs `push` over `buffer` and writes each `Some` output to the front of the same buffer
