@@ -42,6 +42,22 @@ fn expected<S: Raw>(model: &[(i128, bool)]) -> (Vec<S>, u32) {
     (y, model.iter().filter(|m| m.1).count() as u32)
 }
 
+/// A block call given room for one output fewer than the `needed` it produces is refused with
+/// `OutputTooShort` naming both counts.
+fn refuses_one_short<S: Sample>(
+    needed: usize,
+    process: impl FnOnce(&mut [S]) -> Result<usize, Error>,
+) {
+    let mut short = vec![S::ZERO; needed - 1];
+    assert_eq!(
+        process(&mut short),
+        Err(Error::OutputTooShort {
+            needed,
+            found: needed - 1
+        })
+    );
+}
+
 /// The API every same-rate structure offers, so one checker drives them all.
 trait SameRate<S> {
     fn push(&mut self, x: S) -> S;
@@ -158,14 +174,7 @@ fn run_decimating<S: Copy + PartialEq + std::fmt::Debug + Sample>(
     d.reset();
     let needed = d.outputs_for(xs.len());
     if needed > 0 {
-        let mut short = vec![S::ZERO; needed - 1];
-        assert_eq!(
-            d.process(xs, &mut short),
-            Err(Error::OutputTooShort {
-                needed,
-                found: needed - 1
-            })
-        );
+        refuses_one_short::<S>(needed, |short| d.process(xs, short));
         assert_eq!(
             d.outputs_for(xs.len()),
             needed,
@@ -501,14 +510,7 @@ fn check_resampler<S, T, W>(
     rs.reset();
     let needed = rs.outputs_for(xs.len());
     if needed > 0 {
-        let mut short = vec![S::ZERO; needed - 1];
-        assert_eq!(
-            rs.process(&xs, &mut short),
-            Err(Error::OutputTooShort {
-                needed,
-                found: needed - 1
-            })
-        );
+        refuses_one_short::<S>(needed, |short| rs.process(&xs, short));
         // Nothing was processed: the whole stream still gives the model's outputs.
         let mut out = vec![S::ZERO; needed];
         assert_eq!(rs.process(&xs, &mut out), Ok(needed));
