@@ -66,6 +66,9 @@ pub enum Error {
     InvalidPassband,
     /// A filter was given no taps; it needs at least one.
     NoTaps,
+    /// A rate-change factor of 0 (a resampler's up factor L or down factor M); each must be
+    /// at least 1.
+    ZeroFactor,
     /// More taps than the filter's capacity (its history length, the const `N`).
     TooManyTaps {
         /// The most taps the filter holds.
@@ -133,6 +136,9 @@ impl fmt::Display for Error {
                  and leave room for the design",
             ),
             Error::NoTaps => f.write_str("a filter needs at least one tap; none were given"),
+            Error::ZeroFactor => {
+                f.write_str("a rate-change factor of 0: up and down factors must be at least 1")
+            }
             Error::TooManyTaps { capacity, found } => write!(
                 f,
                 "{found} taps given, but the filter holds at most {capacity}"

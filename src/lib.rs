@@ -94,7 +94,7 @@ pub use filter::{DecimatorUpTo, Fir, FirUpTo, GroupDelay, MultiChannelFirUpTo};
 
 pub use filter::{
     CicDecimator, Decimator, HalfBandDecimator, Interpolator, LinearPhaseFir, MovingAverage,
-    MultiChannelFir,
+    MultiChannelFir, Resampler,
 };
 pub use num::{MulAcc, Rounding, Sample};
 pub use ring::Ring;

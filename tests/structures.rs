@@ -14,7 +14,7 @@ use tapline::kernel::FoldMulAcc;
 use tapline::num::{Acc128, DefaultAcc, FixedPoint, RuntimeChecked};
 use tapline::{
     Decimator, Error, Fir, HalfBandDecimator, Interpolator, LinearPhaseFir, MovingAverage, MulAcc,
-    MultiChannelFir, Rounding, Sample,
+    MultiChannelFir, Resampler, Rounding, Sample,
 };
 
 /// Feeds `x` to `block` cut by `sizes`, concatenating what each call returns.
@@ -40,6 +40,22 @@ fn raws<S: Raw>(x: &[i64]) -> Vec<S> {
 fn expected<S: Raw>(model: &[(i128, bool)]) -> (Vec<S>, u32) {
     let y = model.iter().map(|&(v, _)| S::from_raw(v as i64)).collect();
     (y, model.iter().filter(|m| m.1).count() as u32)
+}
+
+/// A block call given room for one output fewer than the `needed` it produces is refused with
+/// `OutputTooShort` naming both counts.
+fn refuses_one_short<S: Sample>(
+    needed: usize,
+    process: impl FnOnce(&mut [S]) -> Result<usize, Error>,
+) {
+    let mut short = vec![S::ZERO; needed - 1];
+    assert_eq!(
+        process(&mut short),
+        Err(Error::OutputTooShort {
+            needed,
+            found: needed - 1
+        })
+    );
 }
 
 /// The API every same-rate structure offers, so one checker drives them all.
@@ -158,14 +174,7 @@ fn run_decimating<S: Copy + PartialEq + std::fmt::Debug + Sample>(
     d.reset();
     let needed = d.outputs_for(xs.len());
     if needed > 0 {
-        let mut short = vec![S::ZERO; needed - 1];
-        assert_eq!(
-            d.process(xs, &mut short),
-            Err(Error::OutputTooShort {
-                needed,
-                found: needed - 1
-            })
-        );
+        refuses_one_short::<S>(needed, |short| d.process(xs, short));
         assert_eq!(
             d.outputs_for(xs.len()),
             needed,
@@ -418,6 +427,113 @@ proptest! {
             x in signal(16), x32 in signal(32), sizes in splits(), mode in any_rounding()) {
         with_const!(h.len(), [1, 3, 5, 7, 9, 11, 15, 19], |N| check_half_band::<i16, i16, N>(&h, spoilt, &x, &sizes, mode));
         with_const!(h32.len(), [1, 3, 5, 7, 9, 11, 15, 19], |N| check_half_band::<i32, i32, N>(&h32, spoilt32, &x32, &sizes, mode));
+    }
+}
+
+// ------------------------------------------------------------------------------------------
+// Resampler
+// ------------------------------------------------------------------------------------------
+
+/// The history capacity the resampler tests use: tap sets of up to 24 taps need ⌈K/L⌉ ≤ 16.
+const RESAMPLER_CAPACITY: usize = 16;
+
+fn check_resampler<S, T, W>(
+    acc_bits: u32,
+    h: &[i64],
+    x: &[i64],
+    (l, m): (usize, usize),
+    sizes: &[usize],
+    mode: Rounding,
+) where
+    S: MulAcc<T, W> + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let taps: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
+    let phase_overflows = (0..l).any(|p| {
+        let phase: Vec<i64> = h.iter().skip(p).step_by(l).copied().collect();
+        overflows(&phase, S::BITS, acc_bits)
+    });
+    let too_long = h.len().div_ceil(l) > RESAMPLER_CAPACITY;
+    let built =
+        Resampler::<S, RESAMPLER_CAPACITY, T, W>::with_accumulator(&taps, l as u16, m as u16);
+    let mut rs = match built {
+        Ok(r) => r.with_rounding(mode),
+        Err(e) if too_long => {
+            return assert_eq!(
+                e,
+                Error::TooManyTaps {
+                    capacity: RESAMPLER_CAPACITY * l,
+                    found: h.len()
+                }
+            );
+        }
+        Err(e) => {
+            assert_eq!(e, Error::AccumulatorOverflow);
+            return assert!(phase_overflows, "refused taps whose phases fit: {h:?}");
+        }
+    };
+    assert!(!too_long, "accepted {} taps at L = {l}", h.len());
+    assert!(
+        !phase_overflows,
+        "accepted taps with a phase that overflows: {h:?}"
+    );
+    let (want, sats) = expected::<S>(&resample_finished(h, x, l, m, T::FRAC, S::BITS, mode));
+    let xs: Vec<S> = raws(x);
+    assert_eq!(
+        rs.outputs_for(xs.len()),
+        want.len(),
+        "outputs_for, L/M = {l}/{m}"
+    );
+    let mut got = Vec::new();
+    for &v in &xs {
+        let before = got.len();
+        let produced = rs.push(v, |y| got.push(y));
+        assert_eq!(produced, got.len() - before);
+        assert!(
+            produced <= l.div_ceil(m) && produced >= l / m,
+            "burst of {produced} at {l}/{m}"
+        );
+    }
+    assert_eq!(got, want, "per sample, L/M = {l}/{m}");
+    assert_eq!(rs.saturations(), sats);
+    rs.reset();
+    let got = in_blocks(&xs, sizes, |b| {
+        let needed = rs.outputs_for(b.len());
+        let mut out = vec![S::ZERO; needed + 1]; // one spare slot: must stay untouched
+        assert_eq!(rs.process(b, &mut out).unwrap(), needed);
+        assert_eq!(out.pop(), Some(S::ZERO));
+        out
+    });
+    assert_eq!(got, want, "process, L/M = {l}/{m}, splits {sizes:?}");
+    assert_eq!(rs.clear_saturations(), sats);
+    rs.reset();
+    let needed = rs.outputs_for(xs.len());
+    if needed > 0 {
+        refuses_one_short::<S>(needed, |short| rs.process(&xs, short));
+        // Nothing was processed: the whole stream still gives the model's outputs.
+        let mut out = vec![S::ZERO; needed];
+        assert_eq!(rs.process(&xs, &mut out), Ok(needed));
+        assert_eq!(out, want);
+    }
+}
+
+proptest! {
+    #![proptest_config(cases::config())]
+
+    /// Resampler = zero-stuff by L, full exact convolution, every M-th from index 0, round,
+    /// saturate (the upfirdn definition), bit for bit, for L, M in 1…6 (coprime or not), 1 to 24
+    /// taps, every rounding mode, saturating inputs and any block split; tap sets whose phases
+    /// overflow are refused exactly when the model says a phase can overflow.
+    #[test]
+    fn resampler_equals_zero_stuffing_convolving_and_keeping_every_mth(
+            k in 1usize..=24, l in 1usize..=6, m in 1usize..=6,
+            seed16 in scaled_codes(16, 24), seed32 in scaled_codes(32, 24),
+            x16 in signal(16), x32 in signal(32), sizes in splits(), mode in any_rounding()) {
+        check_resampler::<i16, i16, DefaultAcc>(64, &seed16[..k], &x16, (l, m), &sizes, mode);
+        check_resampler::<I4F12, I1F15, DefaultAcc>(64, &seed16[..k], &x16, (l, m), &sizes, mode);
+        check_resampler::<i32, i32, DefaultAcc>(64, &seed32[..k], &x32, (l, m), &sizes, mode);
+        check_resampler::<I1F31, I1F31, Acc128>(128, &seed32[..k], &x32, (l, m), &sizes, mode);
     }
 }
 

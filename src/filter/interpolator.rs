@@ -3,7 +3,7 @@
 //! zeros.
 
 use super::GroupDelay;
-use super::shared::{OutputStep, history_dot_strided, output_controls};
+use super::shared::{OutputStep, history_dot_strided, output_controls, phases_fit};
 use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
@@ -87,17 +87,8 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W: RuntimeC
     /// As [`new`](Interpolator::new).
     pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
         const { assert!(L > 0, "an interpolation factor must be at least 1") };
-        // One phase's taps, gathered so the accumulator check sees exactly what one output sums.
-        let mut phase_taps = [T::ZERO; N];
-        for p in 0..L.min(N) {
-            let mut count = 0;
-            for (slot, &h) in phase_taps.iter_mut().zip(taps.iter().skip(p).step_by(L)) {
-                *slot = h;
-                count += 1;
-            }
-            if !S::accumulator_fits(phase_taps.get(..count).unwrap_or(&[])) {
-                return Err(Error::AccumulatorOverflow);
-            }
+        if !phases_fit::<S, T, W, N>(taps, L) {
+            return Err(Error::AccumulatorOverflow);
         }
         Ok(Interpolator {
             taps,

@@ -11,6 +11,7 @@ mod interpolator;
 mod linear_phase;
 mod moving_average;
 mod multichannel;
+mod resampler;
 mod shared;
 mod taps;
 
@@ -29,3 +30,4 @@ pub use interpolator::Interpolator;
 pub use linear_phase::LinearPhaseFir;
 pub use moving_average::MovingAverage;
 pub use multichannel::{MultiChannelFir, MultiChannelFirUpTo};
+pub use resampler::Resampler;

@@ -160,6 +160,28 @@ pub(crate) fn history_dot_strided<S: MulAcc<T, W>, T: Sample, W, const N: usize>
     dot_reversed_strided::<S, T, W>(acc, taps, tap_step, window, x_step)
 }
 
+/// Whether each phase of `taps` taken with stride `step` (the taps p, p + step, p + 2·step, …
+/// for every p < step) fits the accumulator for any full-range input
+/// ([`MulAcc::accumulator_fits`]): a polyphase structure sums one phase per output. `N` bounds
+/// a phase's length (longer phases are checked on their first `N` taps, all a history of `N`
+/// reaches).
+pub(crate) fn phases_fit<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
+    taps: &[T],
+    step: usize,
+) -> bool {
+    let step = step.max(1);
+    let mut phase_taps = [T::ZERO; N];
+    (0..step.min(taps.len())).all(|p| {
+        let mut count = 0;
+        let phase = taps.get(p..).unwrap_or(&[]).iter().step_by(step);
+        for (slot, &h) in phase_taps.iter_mut().zip(phase) {
+            *slot = h;
+            count += 1;
+        }
+        S::accumulator_fits(phase_taps.get(..count).unwrap_or(&[]))
+    })
+}
+
 /// The folded linear-phase sum over a full history of N samples, h = `taps` (length N):
 /// Σ_{k<⌊N/2⌋} h\[k\]·(x\[n−k\] ± x\[n−(N−1−k)\]) plus, for odd N and [`Fold::Sum`], the centre
 /// term h\[c\]·x\[n−c\], c = (N−1)/2. (Antisymmetric taps have a zero centre, which is skipped.)
@@ -227,13 +249,28 @@ impl<const M: usize> Phase<M> {
     }
 }
 
-/// Runs `push` over `input`, writing each `Some` output in turn to `output`, after checking once
-/// that `output` holds the `needed` outputs. Returns how many were written.
-pub(crate) fn decimate_block<S: Copy, Y>(
+/// The front of a block call's output buffer, filled in turn: what a structure that produces
+/// several outputs per input hands each of them to.
+pub(crate) struct Slots<'o, Y>(core::slice::IterMut<'o, Y>);
+
+impl<Y> Slots<'_, Y> {
+    /// Writes `y` to the next slot (the caller checked the room beforehand).
+    #[inline(always)]
+    pub(crate) fn put(&mut self, y: Y) {
+        if let Some(slot) = self.0.next() {
+            *slot = y;
+        }
+    }
+}
+
+/// Runs `feed` over `input`, each call writing its outputs in turn to the front of `output`
+/// through the [`Slots`], after checking once that `output` holds the `needed` outputs. Returns
+/// how many were written.
+pub(crate) fn fill_block<S: Copy, Y>(
     input: &[S],
     output: &mut [Y],
     needed: usize,
-    mut push: impl FnMut(S) -> Option<Y>,
+    mut feed: impl FnMut(S, &mut Slots<'_, Y>),
 ) -> Result<usize, Error> {
     if output.len() < needed {
         return Err(Error::OutputTooShort {
@@ -241,15 +278,25 @@ pub(crate) fn decimate_block<S: Copy, Y>(
             found: output.len(),
         });
     }
-    let mut slots = output.iter_mut();
+    let mut slots = Slots(output.iter_mut());
     for &x in input {
-        if let Some(y) = push(x) {
-            if let Some(slot) = slots.next() {
-                *slot = y;
-            }
-        }
+        feed(x, &mut slots);
     }
     Ok(needed)
+}
+
+/// [`fill_block`] for a structure whose `push` gives at most one output per input.
+pub(crate) fn decimate_block<S: Copy, Y>(
+    input: &[S],
+    output: &mut [Y],
+    needed: usize,
+    mut push: impl FnMut(S) -> Option<Y>,
+) -> Result<usize, Error> {
+    fill_block(input, output, needed, |x, slots| {
+        if let Some(y) = push(x) {
+            slots.put(y);
+        }
+    })
 }
 
 /// Runs `push` over `buffer` and writes each `Some` output to the front of the same buffer

@@ -45,6 +45,31 @@ pub fn zero_stuff(x: &[i64], l: usize) -> Vec<i64> {
         .collect()
 }
 
+/// Exact model of a rational resampler by `l`/`m`, from its definition: zero-stuff `x` by `l`,
+/// convolve fully with `h` in `i128`, keep up-sampled indices 0, m, 2m, … (y[j] = Σ h[k]·u[jm − k],
+/// the outputs of `scipy.signal.upfirdn(h, x, l, m)`) below `l·x.len()` — those a stream of
+/// `x.len()` inputs has produced — then one rounding (÷2^frac) and saturation to `bits` each.
+pub fn resample_finished(
+    h: &[i64],
+    x: &[i64],
+    l: usize,
+    m: usize,
+    frac: u32,
+    bits: u32,
+    mode: Rounding,
+) -> Vec<(i128, bool)> {
+    let u = zero_stuff(x, l);
+    if u.is_empty() {
+        return Vec::new();
+    }
+    let full = convolve_full_exact(&u, h);
+    full[..u.len()]
+        .iter()
+        .step_by(m)
+        .map(|&acc| finish_exact(acc, frac, bits, mode))
+        .collect()
+}
+
 /// Exact model of a fixed-point FIR: the exact sums of `common::fir_exact`, each finished with
 /// one rounding (÷2^frac) and saturation to `bits`.
 pub fn fir_finished(

@@ -19,7 +19,11 @@ for this test; every expected value is computed here by scipy/numpy from those s
     the gain |H| at every band edge;
   * Savitzky-Golay: scipy.signal.savgol_coeffs(window, order, deriv, use='conv') (filter order);
   * responses: scipy.signal.freqz of float taps and of invented Q15 integer taps (as value/2^15)
-    at chosen frequencies (complex value).
+    at chosen frequencies (complex value);
+  * rational resampling: scipy.signal.upfirdn(h, x, up=L, down=M) for invented factor pairs,
+    prototype taps scipy.signal.firwin(K, 1/max(L, M)) * L (tap counts K that are and are not
+    multiples of L) and an invented input (two tones and a step); the first ceil(len(x)*L/M)
+    outputs, those a stream of len(x) inputs produces.
 
 Usage: python3 tests/vectors/generate_scipy.py [--allow-other-versions] [--out DIR]
 """
@@ -111,6 +115,19 @@ SAVGOL_CASES = [(5, 2), (5, 3), (7, 2), (9, 2), (11, 3), (7, 4), (9, 4), (21, 5)
 # Invented Q15 integer taps (a rough smoother with a negative lobe) for freqz on integer taps.
 Q15_TAPS = [-512, 0, 2048, 6144, 9216, 6144, 2048, 0, -511]
 RESPONSE_FREQS = [0.0, 1.0, 12.5, 50.0, 100.0, 249.0, 333.3, 499.0, 500.0]
+
+
+# Rational resampling: (L, M, K). Invented; K = 7, 25, 41, 30 are not multiples of L; 2/2 is not
+# reduced (upfirdn uses only the even taps there).
+RESAMPLE_CASES = [(3, 2, 24), (3, 2, 7), (2, 3, 25), (5, 4, 41), (1, 3, 31), (4, 1, 30), (2, 2, 9)]
+RESAMPLE_INPUT_LEN = 40
+
+
+def resample_input(n):
+    """Invented input: two tones and a step at n = 20, within (-1, 1)."""
+    i = np.arange(n, dtype=np.float64)
+    return (0.5 * np.sin(2 * np.pi * 0.03 * i) + 0.25 * np.cos(2 * np.pi * 0.11 * i + 0.4)
+            + 0.2 * (i >= 20))
 
 
 def firwin_for(kind, numtaps, cutoff, window, fs):
@@ -258,6 +275,28 @@ def main():
     w("const FLOAT_RESPONSE: &[(f64, f64)] = &[")
     for v in hw:
         w(f"    ({fmt_f64(v.real)}, {fmt_f64(v.imag)}),")
+    w("];")
+
+    w("")
+
+    # Rational resampling.
+    x = resample_input(RESAMPLE_INPUT_LEN)
+    w("/// The invented input of every RESAMPLE case.")
+    w(f"const RESAMPLE_INPUT: &[f64] = {rs_list(x, indent='    ')};")
+    w("/// scipy.signal.upfirdn(taps, RESAMPLE_INPUT, up, down): the first ceil(len·up/down)")
+    w("/// outputs; taps = scipy.signal.firwin(len, 1/max(up, down)) * up.")
+    w("const RESAMPLE: &[ResampleCase] = &[")
+    for up, down, k in RESAMPLE_CASES:
+        h = signal.firwin(k, 1.0 / max(up, down)) * up
+        y = signal.upfirdn(h, x, up=up, down=down)
+        count = -(-len(x) * up // down)
+        assert count <= len(y), (up, down, k)
+        w("    ResampleCase {")
+        w(f"        up: {up},")
+        w(f"        down: {down},")
+        w(f"        taps: {rs_list(h, indent='            ')},")
+        w(f"        output: {rs_list(y[:count], indent='            ')},")
+        w("    },")
     w("];")
 
     with open(out_path, "w", encoding="utf-8", newline="\n") as fh:

@@ -14,7 +14,7 @@ use tapline::headroom::{
 };
 use tapline::num::Acc128;
 use tapline::{
-    CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, MultiChannelFirUpTo, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir,
+    CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, MultiChannelFirUpTo, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir, Resampler,
     MovingAverage, MultiChannelFir, Ring, Rounding, Span, convolve, correlate,
 };
 use tapline_firmware::{SMOOTH_64, Smooth64};
@@ -217,6 +217,32 @@ fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rou
         black_box(f.push(b16[2]));
         let mut out = [0i16; 192];
         let _ = black_box(f.process(&b16[..len], &mut out));
+    }
+    // Factors the optimiser cannot see: the phase loop and outputs_for must stay panic-free
+    // for any pair the constructor accepts.
+    let (up, down) = (black_box(3u16), black_box(4u16));
+    if let Ok(mut f) = Resampler::<i16, 5>::new(black_box(&Q15_TAPS), up, down) {
+        let mut sink = 0i16;
+        black_box(f.push(b16[2], |y| sink ^= y));
+        black_box(sink);
+        let mut out = [0i16; 192];
+        let _ = black_box(f.process(&b16[..len], &mut out));
+        black_box(f.outputs_for(black_box(len)));
+        black_box(f.max_outputs_per_input());
+        black_box(f.group_delay());
+        black_box(f.clear_saturations());
+        f.reset();
+    }
+    if let Ok(mut f) =
+        Resampler::<i32, 7, i32, Acc128>::with_accumulator(black_box(&Q31_TAPS), down, up)
+    {
+        let mut out = [0i32; 64];
+        let _ = black_box(f.process(&b32[..len], &mut out));
+    }
+    if let Ok(mut f) = Resampler::<f32, 9>::new(black_box(&F32_TAPS), up, black_box(2)) {
+        let bf: [f32; 64] = core::array::from_fn(|i| f32::from(b16[i]));
+        let mut out = [0f32; 192];
+        let _ = black_box(f.process(&bf[..len], &mut out));
     }
     if let Ok(mut f) = HalfBandDecimator::<i16, 7>::new(black_box(&HALF_BAND)) {
         black_box(f.push(b16[3]));
