@@ -14,8 +14,9 @@ use tapline::headroom::{
 };
 use tapline::num::Acc128;
 use tapline::{
-    CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, MultiChannelFirUpTo, GroupDelay, HalfBandDecimator, Interpolator, LinearPhaseFir, Resampler,
-    MovingAverage, MultiChannelFir, Ring, Rounding, Span, convolve, correlate,
+    CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, GroupDelay, HalfBandDecimator,
+    Interpolator, LinearPhaseFir, MovingAverage, MultiChannelFir, MultiChannelFirUpTo, Resampler,
+    Ring, Rounding, Span, convolve, correlate,
 };
 use tapline_firmware::{SMOOTH_64, Smooth64};
 
