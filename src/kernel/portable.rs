@@ -301,14 +301,22 @@ fn four_in_registers<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) ->
     };
     // At tap k, output m reads window[L−1−k+m]: output 0 takes the next sample read backward
     // from `older`, outputs 1..3 the three samples before it, held in x1..x3 and shifted one
-    // place per tap. Unrolled by four, the shifts become register renaming.
-    let (mut tap_rest, mut x_rest) = (taps, older);
-    while let (Some((h, taps_after)), Some((xs_before, y))) = (
-        tap_rest.split_first_chunk::<4>(),
-        x_rest.split_last_chunk::<4>(),
-    ) {
-        let [h0, h1, h2, h3] = *h;
-        let [y0, y1, y2, y3] = *y;
+    // place per tap. Unrolled by four, the shifts become register renaming. The number of
+    // passes is computed once, so the loop keeps one counter whether the tap count is a
+    // constant or known only at run time.
+    let groups = taps.len().min(older.len()) / 4;
+    let (Some((tap_main, tap_rest)), Some((x_rest, x_main))) = (
+        taps.split_at_checked(4 * groups),
+        older.split_at_checked(older.len() - 4 * groups),
+    ) else {
+        return [zero; 4];
+    };
+    for (h, y) in tap_main.chunks_exact(4).zip(x_main.rchunks_exact(4)) {
+        let (Some(&[h0, h1, h2, h3]), Some(&[y0, y1, y2, y3])) =
+            (h.first_chunk::<4>(), y.first_chunk::<4>())
+        else {
+            continue;
+        };
         a0 = S::mul_acc(a0, h0, y3);
         a1 = S::mul_acc(a1, h0, x1);
         a2 = S::mul_acc(a2, h0, x2);
@@ -326,8 +334,6 @@ fn four_in_registers<S: MulAcc<T, W>, T: Sample, W>(taps: &[T], window: &[S]) ->
         a2 = S::mul_acc(a2, h3, y2);
         a3 = S::mul_acc(a3, h3, y3);
         (x1, x2, x3) = (y0, y1, y2);
-        tap_rest = taps_after;
-        x_rest = xs_before;
     }
     for (&h, &y) in tap_rest.iter().zip(x_rest.iter().rev()) {
         a0 = S::mul_acc(a0, h, y);

@@ -5,11 +5,218 @@
 //! firmware has set `SCB->CCR.UNALIGN_TRP` (off at reset). A sample pair starts at every other
 //! half-word, so half of the pair loads are unaligned; they cost the same instruction count,
 //! and on a Cortex-M4 one extra bus cycle each.
+//!
+//! **Every length in assembly.** Each kernel counts its work in units (a tap pair for Q15, a
+//! tap for Q31 and `f32`): the loop takes a whole pass of units at a time, and the units left
+//! over (fewer than a pass) run through the same steps once each (the `unit_loop!` template),
+//! inside the same `asm!` block. Only the last tap of an odd Q15 length is summed in Rust. So
+//! a tap count known only at run time runs the same instructions as one known when compiling,
+//! which the compiler cannot specialise: the cost table's rows at 85 taps in a capacity of 128
+//! and at exactly 85 taps differ by the filter's bookkeeping, not by the sum.
 
-use super::{add_remaining, plain_sum, reversed_sum_i32};
+use super::{add_odd_tap, add_remaining, plain_sum, reversed_sum_i32};
 use crate::kernel::portable::{groups_of, singles};
 use crate::num::MulAcc;
 use core::arch::asm;
+
+/// The loop frame of every kernel here, as one assembly template: `{n}` holds the number of
+/// units on entry (any value ≥ 0); the `$pass` steps run while a whole pass of `$pass` units
+/// is left, then `$rest` takes the rest (1 to `$pass − 1` units, branching to `4f` or ending
+/// at `5f` itself). Labels 2–5 are local to the template.
+macro_rules! unit_loop {
+    ($pass:literal, [$($step:expr),* $(,)?], [$($rest:expr),* $(,)?]) => {
+        concat!(
+            "subs {n}, {n}, #", stringify!($pass), "\n",
+            "blt 3f\n",
+            "2:\n",
+            $($step,)*
+            "subs {n}, {n}, #", stringify!($pass), "\n",
+            "bge 2b\n",
+            "3:\n",
+            "adds {n}, {n}, #", stringify!($pass), "\n",
+            "beq 5f\n",
+            $($rest,)*
+            "5:\n",
+        )
+    };
+}
+
+/// Q15, four outputs, one tap pair (2j, 2j + 1) against the sample pairs of outputs 0..3. The
+/// pairs of outputs 2 and 3 are those outputs 0 and 1 used one tap pair earlier, so each step
+/// loads two pairs and keeps the other two: step A loads into `a`, `b` and keeps `c`, `d`;
+/// step B the reverse. Steps alternate A, B, A, … from the preloaded `c`, `d`.
+macro_rules! q15_four_step {
+    ($new0:literal, $new1:literal, $kept0:literal, $kept1:literal) => {
+        concat!(
+            "ldr {t}, [{h}], #4\n",
+            "ldr ",
+            $new0,
+            ", [{x}, #-4]!\n",
+            "ldr ",
+            $new1,
+            ", [{x}, #2]\n",
+            "smladx {a0}, {t}, ",
+            $new0,
+            ", {a0}\n",
+            "smladx {a1}, {t}, ",
+            $new1,
+            ", {a1}\n",
+            "smladx {a2}, {t}, ",
+            $kept0,
+            ", {a2}\n",
+            "smladx {a3}, {t}, ",
+            $kept1,
+            ", {a3}\n",
+        )
+    };
+    (A) => {
+        q15_four_step!("{a}", "{b}", "{c}", "{d}")
+    };
+    (B) => {
+        q15_four_step!("{c}", "{d}", "{a}", "{b}")
+    };
+}
+
+/// Q15, two outputs, 64-bit sums: one tap pair against the sample pair of output 0 (loaded
+/// with pre-decrement) and of output 1 (one sample higher).
+macro_rules! q15_two_step {
+    () => {
+        concat!(
+            "ldr {t}, [{h}], #4\n",
+            "ldr {s0}, [{x}, #-4]!\n",
+            "ldr {s1}, [{x}, #2]\n",
+            "smlaldx {lo0}, {hi0}, {t}, {s0}\n",
+            "smlaldx {lo1}, {hi1}, {t}, {s1}\n",
+        )
+    };
+}
+
+/// Q15, one output: one tap pair against one sample pair, into `$mac` (`smladx` for a 32-bit
+/// sum in `{a}`, `smlaldx` for a 64-bit sum in `{lo}`, `{hi}`).
+macro_rules! q15_one_step {
+    ($mac:literal) => {
+        concat!("ldr {t}, [{h}], #4\n", "ldr {s}, [{x}, #-4]!\n", $mac, "\n")
+    };
+}
+
+/// Q31, two outputs, taps k and k + 1: output 0 takes x[L−1−k], x[L−2−k] (the pair just
+/// loaded into `$lo_new`, `{q}`), output 1 takes x[L−k] (`$carry`) and x[L−1−k] (`{q}`).
+/// `ldrd` puts the lower address in the first register; `$lo_new` is the next step's carry.
+macro_rules! q31_two_step {
+    ($lo_new:literal, $carry:literal) => {
+        concat!(
+            "ldrd {h0}, {h1}, [{h}], #8\n",
+            "ldrd ",
+            $lo_new,
+            ", {q}, [{x}, #-8]!\n",
+            "smlal {lo0}, {hi0}, {h0}, {q}\n",
+            "smlal {lo1}, {hi1}, {h0}, ",
+            $carry,
+            "\n",
+            "smlal {lo0}, {hi0}, {h1}, ",
+            $lo_new,
+            "\n",
+            "smlal {lo1}, {hi1}, {h1}, {q}\n",
+        )
+    };
+}
+
+/// Q31, one output, taps k and k + 1 against x[n−k], x[n−k−1].
+macro_rules! q31_one_step {
+    () => {
+        concat!(
+            "ldrd {h0}, {h1}, [{h}], #8\n",
+            "ldrd {p}, {q}, [{x}, #-8]!\n",
+            "smlal {lo}, {hi}, {h0}, {q}\n",
+            "smlal {lo}, {hi}, {h1}, {p}\n",
+        )
+    };
+}
+
+/// `f32`, four outputs, four taps k..k+3 (in s8..s11) against four new samples
+/// x[L−4−k ..= L−1−k] (loaded into `$new`, the registers `$n0`..`$n3`) and the three carried
+/// from the step before (`$c0`..`$c2`, x[L−k ..= L+2−k]). Each output takes its taps in
+/// ascending order. Two steps make a pass: the first loads s12..s15 and carries s16..s18, the
+/// second loads s16..s19 and carries s12..s14, so no register moves are needed.
+macro_rules! f32_four_step {
+    ($new:literal, $n0:literal, $n1:literal, $n2:literal, $n3:literal,
+     $c0:literal, $c1:literal, $c2:literal) => {
+        concat!(
+            "vldmia {h}!, {{s8-s11}}\n",
+            "vldmdb {x}!, {{",
+            $new,
+            "}}\n",
+            "vmla.f32 s0, s8, ",
+            $n3,
+            "\n",
+            "vmla.f32 s1, s8, ",
+            $c0,
+            "\n",
+            "vmla.f32 s2, s8, ",
+            $c1,
+            "\n",
+            "vmla.f32 s3, s8, ",
+            $c2,
+            "\n",
+            "vmla.f32 s0, s9, ",
+            $n2,
+            "\n",
+            "vmla.f32 s1, s9, ",
+            $n3,
+            "\n",
+            "vmla.f32 s2, s9, ",
+            $c0,
+            "\n",
+            "vmla.f32 s3, s9, ",
+            $c1,
+            "\n",
+            "vmla.f32 s0, s10, ",
+            $n1,
+            "\n",
+            "vmla.f32 s1, s10, ",
+            $n2,
+            "\n",
+            "vmla.f32 s2, s10, ",
+            $n3,
+            "\n",
+            "vmla.f32 s3, s10, ",
+            $c0,
+            "\n",
+            "vmla.f32 s0, s11, ",
+            $n0,
+            "\n",
+            "vmla.f32 s1, s11, ",
+            $n1,
+            "\n",
+            "vmla.f32 s2, s11, ",
+            $n2,
+            "\n",
+            "vmla.f32 s3, s11, ",
+            $n3,
+            "\n",
+        )
+    };
+    (A) => {
+        f32_four_step!("s12-s15", "s12", "s13", "s14", "s15", "s16", "s17", "s18")
+    };
+    (B) => {
+        f32_four_step!("s16-s19", "s16", "s17", "s18", "s19", "s12", "s13", "s14")
+    };
+}
+
+/// `f32`, one output, four taps against the four samples below the sample pointer.
+macro_rules! f32_one_step {
+    () => {
+        concat!(
+            "vldmia {h}!, {{s8-s11}}\n",
+            "vldmdb {x}!, {{s12-s15}}\n",
+            "vmla.f32 s0, s8, s15\n",
+            "vmla.f32 s0, s9, s14\n",
+            "vmla.f32 s0, s10, s13\n",
+            "vmla.f32 s0, s11, s12\n",
+        )
+    };
+}
 
 // The remainder sums, term by term with the portable twin's `mul_acc`.
 #[inline(always)]
@@ -47,78 +254,53 @@ pub fn dot_block_q15_i32(taps: &[i16], span: &[i16], mut emit: impl FnMut(i32)) 
 #[inline(always)]
 fn four_outputs(taps: &[i16], window: &[i16]) -> [i32; 4] {
     let len = taps.len();
-    let groups = len / 8;
-    let mut acc = [0i32; 4];
-    // The assembly reads taps[..8·groups] and window[L − 8·groups .. L + 3]; both lie inside
-    // the slices when these hold (checked, so a wrong caller gets the portable path instead).
-    let newest = window.get(len..len + 3).map(<[i16]>::as_ptr);
-    if let (Some(newest), true) = (newest, groups > 0 && len >= 8 * groups) {
-        let [mut a0, mut a1, mut a2, mut a3] = acc;
-        // SAFETY: `newest` points at window[L], and window has L + 3 elements, so the two
-        // first loads (pairs at L and L + 1) read window[L ..= L + 2]. Each loop pass moves the
-        // sample pointer back by 8 elements (four pre-decrements of 2) and reads the pairs at
-        // the new position and one element after it; after `groups` passes the lowest element
-        // read is window[L − 8·groups] ≥ window[0]. The tap pointer reads 8 elements per pass,
-        // 8·groups ≤ L in all. Only `ldr` (which may be unaligned on Armv7-M) reads memory;
-        // nothing is written; the stack is not touched; the flags are clobbered by `subs`
-        // (no `preserves_flags`). Every register written is an operand.
-        unsafe {
-            asm!(
-                "ldr {c}, [{x}]",
-                "ldr {d}, [{x}, #2]",
-                "2:",
-                // Taps 2j, 2j+1 against the pairs for outputs 0..3; the pairs of outputs 2, 3
-                // are those outputs 0, 1 used one tap pair earlier, so two loads per pair.
-                "ldr {t}, [{h}], #4",
-                "ldr {a}, [{x}, #-4]!",
-                "ldr {b}, [{x}, #2]",
-                "smladx {a0}, {t}, {a}, {a0}",
-                "smladx {a1}, {t}, {b}, {a1}",
-                "smladx {a2}, {t}, {c}, {a2}",
-                "smladx {a3}, {t}, {d}, {a3}",
-                "ldr {t}, [{h}], #4",
-                "ldr {c}, [{x}, #-4]!",
-                "ldr {d}, [{x}, #2]",
-                "smladx {a0}, {t}, {c}, {a0}",
-                "smladx {a1}, {t}, {d}, {a1}",
-                "smladx {a2}, {t}, {a}, {a2}",
-                "smladx {a3}, {t}, {b}, {a3}",
-                "ldr {t}, [{h}], #4",
-                "ldr {a}, [{x}, #-4]!",
-                "ldr {b}, [{x}, #2]",
-                "smladx {a0}, {t}, {a}, {a0}",
-                "smladx {a1}, {t}, {b}, {a1}",
-                "smladx {a2}, {t}, {c}, {a2}",
-                "smladx {a3}, {t}, {d}, {a3}",
-                "ldr {t}, [{h}], #4",
-                "ldr {c}, [{x}, #-4]!",
-                "ldr {d}, [{x}, #2]",
-                "smladx {a0}, {t}, {c}, {a0}",
-                "smladx {a1}, {t}, {d}, {a1}",
-                "smladx {a2}, {t}, {a}, {a2}",
-                "smladx {a3}, {t}, {b}, {a3}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) newest => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                t = out(reg) _,
-                a = out(reg) _,
-                b = out(reg) _,
-                c = out(reg) _,
-                d = out(reg) _,
-                a0 = inout(reg) a0,
-                a1 = inout(reg) a1,
-                a2 = inout(reg) a2,
-                a3 = inout(reg) a3,
-                options(nostack, readonly),
-            );
-        }
-        acc = [a0, a1, a2, a3];
+    // The window must have L + 3 samples (checked, so a wrong caller gets the portable path).
+    let Some(newest) = window.get(len..len + 3).map(<[i16]>::as_ptr) else {
+        return add_remaining([0; 4], taps, window, 0, reversed_sum_i32);
+    };
+    let [mut a0, mut a1, mut a2, mut a3] = [0i32; 4];
+    // SAFETY: `newest` points at window[L], and window has L + 3 elements, so the two
+    // first loads (pairs at L and L + 1) read window[L ..= L + 2]. Each step, in the loop or in
+    // the remainder, moves the sample pointer back by 2 elements and reads the pairs at the new
+    // position and one element after it, and reads one tap pair; there are ⌊L/2⌋ steps, so the
+    // lowest sample read is window[L mod 2] and the highest tap taps[2·⌊L/2⌋ − 1] < taps[L].
+    // Only `ldr` (which may be unaligned on Armv7-M) reads memory; nothing is written; the
+    // stack is not touched; the flags are clobbered (no `preserves_flags`). Every register
+    // written is an operand.
+    unsafe {
+        asm!(
+            "ldr {c}, [{x}]",
+            "ldr {d}, [{x}, #2]",
+            unit_loop!(
+                4,
+                [q15_four_step!(A), q15_four_step!(B), q15_four_step!(A), q15_four_step!(B)],
+                [
+                    "cmp {n}, #2\n",
+                    "blt 4f\n",
+                    q15_four_step!(A),
+                    q15_four_step!(B),
+                    "subs {n}, {n}, #2\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    q15_four_step!(A),
+                ]
+            ),
+            x = inout(reg) newest => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) len / 2 => _,
+            t = out(reg) _,
+            a = out(reg) _,
+            b = out(reg) _,
+            c = out(reg) _,
+            d = out(reg) _,
+            a0 = inout(reg) a0,
+            a1 = inout(reg) a1,
+            a2 = inout(reg) a2,
+            a3 = inout(reg) a3,
+            options(nostack, readonly),
+        );
     }
-    // The taps the assembly did not take (all of them if it did not run), in the same sums.
-    let done = if newest.is_some() { 8 * groups } else { 0 };
-    add_remaining(acc, taps, window, done, reversed_sum_i32)
+    add_odd_tap([a0, a1, a2, a3], taps, window, reversed_sum_i32)
 }
 
 /// The block sum of `f32` samples and taps: for every `i` with `i + taps.len() ≤ span.len()`,
@@ -143,95 +325,72 @@ pub fn dot_block_f32(taps: &[f32], span: &[f32], mut emit: impl FnMut(f32)) {
 #[inline(always)]
 fn four_outputs_f32(taps: &[f32], window: &[f32]) -> [f32; 4] {
     let len = taps.len();
-    let groups = len / 8;
     let mut acc = [0.0f32; 4];
-    let newest = window.get(len..len + 3).map(<[f32]>::as_ptr);
-    if let (Some(newest), true) = (newest, groups > 0) {
-        // SAFETY: `newest` points at window[L] of a window of L + 3 elements: the first load
-        // reads window[L ..= L + 2]. Each pass of the loop moves the sample pointer back by 8
-        // elements (two `vldmdb` of 4) and reads the 8 elements below its old position, and
-        // moves the tap pointer forward by 8, reading the 8 elements it passes; after `groups`
-        // passes the samples read reach down to window[L − 8·groups] ≥ window[0] and the taps
-        // up to taps[8·groups − 1] ≤ taps[L − 1]. `f32` slices are 4-byte aligned, as `vldm`
-        // needs. The only memory written is `acc`, a local array of four `f32` (16 bytes, read
-        // first and stored last); the stack is not touched; the flags are clobbered by
-        // `subs`. Every register written is an operand or declared clobbered.
-        unsafe {
-            asm!(
-                // Stable `asm!` cannot pass `f32` in s-registers on this target (it asks for the
-                // double-precision `vfp2` feature), so the four sums go through `acc` in memory.
-                "vldmia {acc}, {{s0-s3}}",
-                "vldmia {x}, {{s16-s18}}",
-                "2:",
-                // Pass A: taps k..k+3 in s8..s11, samples x[L−4−k ..= L−1−k] in s12..s15, and
-                // x[L−k ..= L+2−k] carried in s16..s18. Each output takes its taps in order.
-                "vldmia {h}!, {{s8-s11}}",
-                "vldmdb {x}!, {{s12-s15}}",
-                "vmla.f32 s0, s8, s15",
-                "vmla.f32 s1, s8, s16",
-                "vmla.f32 s2, s8, s17",
-                "vmla.f32 s3, s8, s18",
-                "vmla.f32 s0, s9, s14",
-                "vmla.f32 s1, s9, s15",
-                "vmla.f32 s2, s9, s16",
-                "vmla.f32 s3, s9, s17",
-                "vmla.f32 s0, s10, s13",
-                "vmla.f32 s1, s10, s14",
-                "vmla.f32 s2, s10, s15",
-                "vmla.f32 s3, s10, s16",
-                "vmla.f32 s0, s11, s12",
-                "vmla.f32 s1, s11, s13",
-                "vmla.f32 s2, s11, s14",
-                "vmla.f32 s3, s11, s15",
-                // Pass B: the next four taps; the new samples go to s16..s19 and the carry is
-                // s12..s14 from pass A, so no register moves are needed.
-                "vldmia {h}!, {{s8-s11}}",
-                "vldmdb {x}!, {{s16-s19}}",
-                "vmla.f32 s0, s8, s19",
-                "vmla.f32 s1, s8, s12",
-                "vmla.f32 s2, s8, s13",
-                "vmla.f32 s3, s8, s14",
-                "vmla.f32 s0, s9, s18",
-                "vmla.f32 s1, s9, s19",
-                "vmla.f32 s2, s9, s12",
-                "vmla.f32 s3, s9, s13",
-                "vmla.f32 s0, s10, s17",
-                "vmla.f32 s1, s10, s18",
-                "vmla.f32 s2, s10, s19",
-                "vmla.f32 s3, s10, s12",
-                "vmla.f32 s0, s11, s16",
-                "vmla.f32 s1, s11, s17",
-                "vmla.f32 s2, s11, s18",
-                "vmla.f32 s3, s11, s19",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                "vstmia {acc}, {{s0-s3}}",
-                x = inout(reg) newest => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                acc = in(reg) acc.as_mut_ptr(),
-                out("s0") _,
-                out("s1") _,
-                out("s2") _,
-                out("s3") _,
-                out("s8") _,
-                out("s9") _,
-                out("s10") _,
-                out("s11") _,
-                out("s12") _,
-                out("s13") _,
-                out("s14") _,
-                out("s15") _,
-                out("s16") _,
-                out("s17") _,
-                out("s18") _,
-                out("s19") _,
-                options(nostack),
-            );
-        }
+    let Some(newest) = window.get(len..len + 3).map(<[f32]>::as_ptr) else {
+        return add_remaining(acc, taps, window, 0, portable_f32);
+    };
+    // SAFETY: `newest` points at window[L] of a window of L + 3 elements: the first load
+    // reads window[L ..= L + 2]. Each four-tap step moves the sample pointer back by 4
+    // elements and reads the 4 below its old position, and reads 4 taps, moving the tap
+    // pointer forward; each one-tap step of the remainder reads one tap and moves the sample
+    // pointer back by one element, then reads the 4 elements from there (window[L − 1 − k ..=
+    // L + 2 − k] for tap k ≤ L − 1, inside the window). Every tap k < L is taken once, so the
+    // taps read are taps[..L] and the lowest sample window[0]. `f32` slices are 4-byte
+    // aligned, as `vldm` needs. The only memory written is `acc`, a local array of four `f32`
+    // (16 bytes, read first and stored last); the stack is not touched; the flags are
+    // clobbered. Every register written is an operand or declared clobbered.
+    unsafe {
+        asm!(
+            // Stable `asm!` cannot pass `f32` in s-registers on this target (it asks for the
+            // double-precision `vfp2` feature), so the four sums go through `acc` in memory.
+            "vldmia {acc}, {{s0-s3}}",
+            "vldmia {x}, {{s16-s18}}",
+            unit_loop!(
+                8,
+                [f32_four_step!(A), f32_four_step!(B)],
+                [
+                    "cmp {n}, #4\n",
+                    "blt 4f\n",
+                    f32_four_step!(A),
+                    "subs {n}, {n}, #4\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    "vldmia {h}!, {{s8}}\n",
+                    "sub {x}, {x}, #4\n",
+                    "vldmia {x}, {{s12-s15}}\n",
+                    "vmla.f32 s0, s8, s12\n",
+                    "vmla.f32 s1, s8, s13\n",
+                    "vmla.f32 s2, s8, s14\n",
+                    "vmla.f32 s3, s8, s15\n",
+                    "subs {n}, {n}, #1\n",
+                    "bne 4b\n",
+                ]
+            ),
+            "vstmia {acc}, {{s0-s3}}",
+            x = inout(reg) newest => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) len => _,
+            acc = in(reg) acc.as_mut_ptr(),
+            out("s0") _,
+            out("s1") _,
+            out("s2") _,
+            out("s3") _,
+            out("s8") _,
+            out("s9") _,
+            out("s10") _,
+            out("s11") _,
+            out("s12") _,
+            out("s13") _,
+            out("s14") _,
+            out("s15") _,
+            out("s16") _,
+            out("s17") _,
+            out("s18") _,
+            out("s19") _,
+            options(nostack),
+        );
     }
-    let done = if newest.is_some() { 8 * groups } else { 0 };
-    add_remaining(acc, taps, window, done, portable_f32)
+    acc
 }
 
 /// The single-output sums (per-sample calls): `acc + Σ_k taps[k]·xs[len − 1 − k]` over
@@ -239,14 +398,12 @@ fn four_outputs_f32(taps: &[f32], window: &[f32]) -> [f32; 4] {
 /// [`dot_reversed`](crate::kernel::dot_reversed), which is each function's portable twin.
 ///
 /// Returns the equal-length tails the assembly works on: `taps[..len]` and the last `len`
-/// samples.
+/// samples, and a pointer one past the last sample.
 #[inline(always)]
-fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X]) {
+fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X], *const X) {
     let len = taps.len().min(xs.len());
-    (
-        taps.get(..len).unwrap_or(&[]),
-        xs.get(xs.len() - len..).unwrap_or(&[]),
-    )
+    let xs = xs.get(xs.len() - len..).unwrap_or(&[]);
+    (taps.get(..len).unwrap_or(&[]), xs, xs.as_ptr_range().end)
 }
 
 /// Q15 samples and taps, one output, 32-bit wrapping sum (the proven accumulator): 16 taps per
@@ -257,58 +414,45 @@ fn matched<'t, 'x, T, X>(taps: &'t [T], xs: &'x [X]) -> (&'t [T], &'x [X]) {
 #[inline]
 #[must_use]
 pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
-    let (taps, xs) = matched(taps, xs);
-    let groups = taps.len() / 16;
+    let (taps, xs, end) = matched(taps, xs);
     let mut acc = acc;
-    let end = xs.get(xs.len()..).map(<[i16]>::as_ptr);
-    if let (Some(end), true) = (end, groups > 0) {
-        // SAFETY: `end` is one past the last sample. Each pair step pre-decrements the sample
-        // pointer by 2 elements and reads 2 there, and reads 2 taps at the tap pointer, then
-        // advances it by 2; a loop pass is 8 steps. After `groups` passes the lowest sample read
-        // is xs[len − 16·groups] ≥ xs[0] and the highest tap taps[16·groups − 1] < taps[len].
-        // `ldr` may be unaligned on Armv7-M (see the module doc). Memory is only read; the
-        // stack is untouched; `subs` clobbers the flags; every register written is an operand.
-        unsafe {
-            asm!(
-                "2:",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smladx {a}, {t}, {s}, {a}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) end => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                t = out(reg) _,
-                s = out(reg) _,
-                a = inout(reg) acc,
-                options(nostack, readonly),
-            );
-        }
+    // SAFETY: `end` is one past the last sample. Each pair step pre-decrements the sample
+    // pointer by 2 elements and reads 2 there, and reads 2 taps at the tap pointer, then
+    // advances it by 2. There are ⌊len/2⌋ steps (a pass is 8, the remainder fewer), so the
+    // lowest sample read is xs[len mod 2] and the highest tap taps[2·⌊len/2⌋ − 1] < taps[len].
+    // `ldr` may be unaligned on Armv7-M (see the module doc). Memory is only read; the stack
+    // is untouched; the flags are clobbered; every register written is an operand.
+    unsafe {
+        asm!(
+            unit_loop!(
+                8,
+                [
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                ],
+                [
+                    "4:\n",
+                    q15_one_step!("smladx {a}, {t}, {s}, {a}"),
+                    "subs {n}, {n}, #1\n",
+                    "bne 4b\n",
+                ]
+            ),
+            x = inout(reg) end => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) taps.len() / 2 => _,
+            t = out(reg) _,
+            s = out(reg) _,
+            a = inout(reg) acc,
+            options(nostack, readonly),
+        );
     }
-    let done = if end.is_some() { 16 * groups } else { 0 };
-    let [acc] = add_remaining([acc], taps, xs, done, reversed_sum_i32);
+    let [acc] = add_odd_tap([acc], taps, xs, reversed_sum_i32);
     acc
 }
 
@@ -320,55 +464,42 @@ pub fn dot_reversed_q15_i32(acc: i32, taps: &[i16], xs: &[i16]) -> i32 {
 #[inline]
 #[must_use]
 pub fn dot_reversed_q15_i64(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
-    let (taps, xs) = matched(taps, xs);
-    let groups = taps.len() / 16;
+    let (taps, xs, end) = matched(taps, xs);
     let (mut lo, mut hi) = split64(acc);
-    let end = xs.get(xs.len()..).map(<[i16]>::as_ptr);
-    if let (Some(end), true) = (end, groups > 0) {
-        // SAFETY: as in `dot_reversed_q15_i32`: the same pointers, steps and pass count, so the
-        // same elements are read; only the accumulate instruction differs.
-        unsafe {
-            asm!(
-                "2:",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s}, [{x}, #-4]!",
-                "smlaldx {lo}, {hi}, {t}, {s}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) end => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                t = out(reg) _,
-                s = out(reg) _,
-                lo = inout(reg) lo,
-                hi = inout(reg) hi,
-                options(nostack, readonly),
-            );
-        }
+    // SAFETY: as in `dot_reversed_q15_i32`: the same pointers, steps and step count, so the
+    // same elements are read; only the accumulate instruction differs.
+    unsafe {
+        asm!(
+            unit_loop!(
+                8,
+                [
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                ],
+                [
+                    "4:\n",
+                    q15_one_step!("smlaldx {lo}, {hi}, {t}, {s}"),
+                    "subs {n}, {n}, #1\n",
+                    "bne 4b\n",
+                ]
+            ),
+            x = inout(reg) end => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) taps.len() / 2 => _,
+            t = out(reg) _,
+            s = out(reg) _,
+            lo = inout(reg) lo,
+            hi = inout(reg) hi,
+            options(nostack, readonly),
+        );
     }
-    let done = if end.is_some() { 16 * groups } else { 0 };
-    let [acc] = add_remaining([join64(lo, hi)], taps, xs, done, portable_q15);
+    let [acc] = add_odd_tap([join64(lo, hi)], taps, xs, portable_q15);
     acc
 }
 
@@ -380,47 +511,44 @@ pub fn dot_reversed_q15_i64(acc: i64, taps: &[i16], xs: &[i16]) -> i64 {
 #[inline]
 #[must_use]
 pub fn dot_reversed_q31_i64(acc: i64, taps: &[i32], xs: &[i32]) -> i64 {
-    let (taps, xs) = matched(taps, xs);
-    let groups = taps.len() / 4;
+    let (taps, _, end) = matched(taps, xs);
     let (mut lo, mut hi) = split64(acc);
-    let end = xs.get(xs.len()..).map(<[i32]>::as_ptr);
-    if let (Some(end), true) = (end, groups > 0) {
-        // SAFETY: `end` is one past the last sample. A pass reads taps[4j .. 4j+4] (two `ldrd`
-        // with post-increment) and, with two pre-decrements of 2 elements, the 4 samples below
-        // the sample pointer; after `groups` passes that is taps[..4·groups] and
-        // xs[len − 4·groups ..], both inside. `i32` slices are 4-byte aligned, which `ldrd`
-        // needs on Armv7-M. Memory is only read; the stack is untouched; `subs` clobbers the
-        // flags; every register written is an operand.
-        unsafe {
-            asm!(
-                "2:",
-                // h0·x[n−k] + h1·x[n−k−1]: `ldrd` puts the lower address in the first register.
-                "ldrd {h0}, {h1}, [{h}], #8",
-                "ldrd {p}, {q}, [{x}, #-8]!",
-                "smlal {lo}, {hi}, {h0}, {q}",
-                "smlal {lo}, {hi}, {h1}, {p}",
-                "ldrd {h0}, {h1}, [{h}], #8",
-                "ldrd {p}, {q}, [{x}, #-8]!",
-                "smlal {lo}, {hi}, {h0}, {q}",
-                "smlal {lo}, {hi}, {h1}, {p}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) end => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                h0 = out(reg) _,
-                h1 = out(reg) _,
-                p = out(reg) _,
-                q = out(reg) _,
-                lo = inout(reg) lo,
-                hi = inout(reg) hi,
-                options(nostack, readonly),
-            );
-        }
+    // SAFETY: `end` is one past the last sample. A two-tap step reads 2 taps (`ldrd` with
+    // post-increment) and, pre-decrementing by 2 elements, the 2 samples below the sample
+    // pointer; the one-tap step of the remainder reads 1 of each the same way. Every tap is
+    // taken once, so the steps read taps[..len] and xs[..len], inside both. `i32` slices are
+    // 4-byte aligned, which `ldrd` needs on Armv7-M. Memory is only read; the stack is
+    // untouched; the flags are clobbered; every register written is an operand.
+    unsafe {
+        asm!(
+            unit_loop!(
+                4,
+                [q31_one_step!(), q31_one_step!()],
+                [
+                    "cmp {n}, #2\n",
+                    "blt 4f\n",
+                    q31_one_step!(),
+                    "subs {n}, {n}, #2\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    "ldr {h0}, [{h}], #4\n",
+                    "ldr {p}, [{x}, #-4]!\n",
+                    "smlal {lo}, {hi}, {h0}, {p}\n",
+                ]
+            ),
+            x = inout(reg) end => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) taps.len() => _,
+            h0 = out(reg) _,
+            h1 = out(reg) _,
+            p = out(reg) _,
+            q = out(reg) _,
+            lo = inout(reg) lo,
+            hi = inout(reg) hi,
+            options(nostack, readonly),
+        );
     }
-    let done = if end.is_some() { 4 * groups } else { 0 };
-    let [acc] = add_remaining([join64(lo, hi)], taps, xs, done, portable_q31);
-    acc
+    join64(lo, hi)
 }
 
 /// The block sum of Q31 samples and taps in exact 64-bit sums: as
@@ -440,61 +568,52 @@ pub fn dot_block_q31_i64(taps: &[i32], span: &[i32], mut emit: impl FnMut(i64)) 
 #[inline(always)]
 fn two_outputs_q31(taps: &[i32], window: &[i32]) -> [i64; 2] {
     let len = taps.len();
-    let groups = len / 4;
+    let Some(newest) = window.get(len..len + 1).map(<[i32]>::as_ptr) else {
+        return add_remaining([0; 2], taps, window, 0, portable_q31);
+    };
     let (mut lo0, mut hi0, mut lo1, mut hi1) = (0u32, 0u32, 0u32, 0u32);
-    let newest = window.get(len..len + 1).map(<[i32]>::as_ptr);
-    if let (Some(newest), true) = (newest, groups > 0) {
-        // SAFETY: `newest` points at window[L] of L + 1 elements; the first load reads it. A
-        // pass reads taps[4j .. 4j+4] (two `ldrd`, post-increment) and the 4 samples below the
-        // sample pointer (two `ldrd` with pre-decrement); after `groups` passes that is
-        // taps[..4·groups] and window[L − 4·groups ..], inside both slices. `i32` slices are
-        // 4-byte aligned, as `ldrd` needs. Memory is only read; the stack is untouched; `subs`
-        // clobbers the flags; every register written is an operand.
-        unsafe {
-            asm!(
-                "ldr {c}, [{x}]",
-                "2:",
-                // Taps k, k+1: output 0 takes x[L−1−k], x[L−2−k] (q, p, just loaded), output 1
-                // takes x[L−k] (c, carried), x[L−1−k] (q).
-                "ldrd {h0}, {h1}, [{h}], #8",
-                "ldrd {p}, {q}, [{x}, #-8]!",
-                "smlal {lo0}, {hi0}, {h0}, {q}",
-                "smlal {lo1}, {hi1}, {h0}, {c}",
-                "smlal {lo0}, {hi0}, {h1}, {p}",
-                "smlal {lo1}, {hi1}, {h1}, {q}",
-                // Taps k+2, k+3: the carry is p; the new pair goes to (c, q).
-                "ldrd {h0}, {h1}, [{h}], #8",
-                "ldrd {c}, {q}, [{x}, #-8]!",
-                "smlal {lo0}, {hi0}, {h0}, {q}",
-                "smlal {lo1}, {hi1}, {h0}, {p}",
-                "smlal {lo0}, {hi0}, {h1}, {c}",
-                "smlal {lo1}, {hi1}, {h1}, {q}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) newest => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                h0 = out(reg) _,
-                h1 = out(reg) _,
-                p = out(reg) _,
-                q = out(reg) _,
-                c = out(reg) _,
-                lo0 = inout(reg) lo0,
-                hi0 = inout(reg) hi0,
-                lo1 = inout(reg) lo1,
-                hi1 = inout(reg) hi1,
-                options(nostack, readonly),
-            );
-        }
+    // SAFETY: `newest` points at window[L] of L + 1 elements; the first load reads it. A
+    // two-tap step reads 2 taps (`ldrd`, post-increment) and the 2 samples below the sample
+    // pointer (`ldrd` with pre-decrement); the one-tap step of the remainder reads 1 of each
+    // the same way. Every tap is taken once, so that is taps[..L] and window[..=L], inside
+    // both slices. `i32` slices are 4-byte aligned, as `ldrd` needs. Memory is only read; the
+    // stack is untouched; the flags are clobbered; every register written is an operand.
+    unsafe {
+        asm!(
+            "ldr {c}, [{x}]",
+            unit_loop!(
+                4,
+                [q31_two_step!("{p}", "{c}"), q31_two_step!("{c}", "{p}")],
+                [
+                    "cmp {n}, #2\n",
+                    "blt 4f\n",
+                    q31_two_step!("{p}", "{c}"),
+                    "mov {c}, {p}\n",
+                    "subs {n}, {n}, #2\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    "ldr {h0}, [{h}], #4\n",
+                    "ldr {p}, [{x}, #-4]!\n",
+                    "smlal {lo0}, {hi0}, {h0}, {p}\n",
+                    "smlal {lo1}, {hi1}, {h0}, {c}\n",
+                ]
+            ),
+            x = inout(reg) newest => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) len => _,
+            h0 = out(reg) _,
+            h1 = out(reg) _,
+            p = out(reg) _,
+            q = out(reg) _,
+            c = out(reg) _,
+            lo0 = inout(reg) lo0,
+            hi0 = inout(reg) hi0,
+            lo1 = inout(reg) lo1,
+            hi1 = inout(reg) hi1,
+            options(nostack, readonly),
+        );
     }
-    let done = if newest.is_some() { 4 * groups } else { 0 };
-    add_remaining(
-        [join64(lo0, hi0), join64(lo1, hi1)],
-        taps,
-        window,
-        done,
-        portable_q31,
-    )
+    [join64(lo0, hi0), join64(lo1, hi1)]
 }
 
 /// The block sum of Q15 samples and taps in exact 64-bit sums (the default accumulator): as
@@ -513,62 +632,50 @@ pub fn dot_block_q15_i64(taps: &[i16], span: &[i16], mut emit: impl FnMut(i64)) 
 #[inline(always)]
 fn two_outputs_q15(taps: &[i16], window: &[i16]) -> [i64; 2] {
     let len = taps.len();
-    let groups = len / 8;
+    let Some(newest) = window.get(len..len + 1).map(<[i16]>::as_ptr) else {
+        return add_remaining([0; 2], taps, window, 0, portable_q15);
+    };
     let (mut lo0, mut hi0, mut lo1, mut hi1) = (0u32, 0u32, 0u32, 0u32);
-    let newest = window.get(len..len + 1).map(<[i16]>::as_ptr);
-    if let (Some(newest), true) = (newest, groups > 0) {
-        // SAFETY: `newest` points at window[L] of L + 1 elements. Each pair step moves the
-        // sample pointer back by 2 elements and reads 2 there (output 0) and 2 one element
-        // higher (output 1), up to window[L] on the first step; it reads 2 taps and advances
-        // the tap pointer by 2. A pass is 4 steps; after `groups` passes the lowest sample read
-        // is window[L − 8·groups] ≥ window[0] and the highest tap taps[8·groups − 1] < taps[L].
-        // `ldr` may be unaligned (module doc). Memory is only read; the stack is untouched;
-        // `subs` clobbers the flags; every register written is an operand.
-        unsafe {
-            asm!(
-                "2:",
-                "ldr {t}, [{h}], #4",
-                "ldr {s0}, [{x}, #-4]!",
-                "ldr {s1}, [{x}, #2]",
-                "smlaldx {lo0}, {hi0}, {t}, {s0}",
-                "smlaldx {lo1}, {hi1}, {t}, {s1}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s0}, [{x}, #-4]!",
-                "ldr {s1}, [{x}, #2]",
-                "smlaldx {lo0}, {hi0}, {t}, {s0}",
-                "smlaldx {lo1}, {hi1}, {t}, {s1}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s0}, [{x}, #-4]!",
-                "ldr {s1}, [{x}, #2]",
-                "smlaldx {lo0}, {hi0}, {t}, {s0}",
-                "smlaldx {lo1}, {hi1}, {t}, {s1}",
-                "ldr {t}, [{h}], #4",
-                "ldr {s0}, [{x}, #-4]!",
-                "ldr {s1}, [{x}, #2]",
-                "smlaldx {lo0}, {hi0}, {t}, {s0}",
-                "smlaldx {lo1}, {hi1}, {t}, {s1}",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                x = inout(reg) newest => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                t = out(reg) _,
-                s0 = out(reg) _,
-                s1 = out(reg) _,
-                lo0 = inout(reg) lo0,
-                hi0 = inout(reg) hi0,
-                lo1 = inout(reg) lo1,
-                hi1 = inout(reg) hi1,
-                options(nostack, readonly),
-            );
-        }
+    // SAFETY: `newest` points at window[L] of L + 1 elements. Each pair step moves the
+    // sample pointer back by 2 elements and reads 2 there (output 0) and 2 one element
+    // higher (output 1), up to window[L] on the first step; it reads 2 taps and advances
+    // the tap pointer by 2. There are ⌊L/2⌋ steps, so the lowest sample read is
+    // window[L mod 2] and the highest tap taps[2·⌊L/2⌋ − 1] < taps[L]. `ldr` may be
+    // unaligned (module doc). Memory is only read; the stack is untouched; the flags are
+    // clobbered; every register written is an operand.
+    unsafe {
+        asm!(
+            unit_loop!(
+                4,
+                [q15_two_step!(), q15_two_step!(), q15_two_step!(), q15_two_step!()],
+                [
+                    "cmp {n}, #2\n",
+                    "blt 4f\n",
+                    q15_two_step!(),
+                    q15_two_step!(),
+                    "subs {n}, {n}, #2\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    q15_two_step!(),
+                ]
+            ),
+            x = inout(reg) newest => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) len / 2 => _,
+            t = out(reg) _,
+            s0 = out(reg) _,
+            s1 = out(reg) _,
+            lo0 = inout(reg) lo0,
+            hi0 = inout(reg) hi0,
+            lo1 = inout(reg) lo1,
+            hi1 = inout(reg) hi1,
+            options(nostack, readonly),
+        );
     }
-    let done = if newest.is_some() { 8 * groups } else { 0 };
-    add_remaining(
+    add_odd_tap(
         [join64(lo0, hi0), join64(lo1, hi1)],
         taps,
         window,
-        done,
         portable_q15,
     )
 }
@@ -582,56 +689,53 @@ fn two_outputs_q15(taps: &[i16], window: &[i16]) -> [i64; 2] {
 #[inline]
 #[must_use]
 pub fn dot_reversed_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
-    let (taps, xs) = matched(taps, xs);
-    let groups = taps.len() / 8;
+    let (taps, _, end) = matched(taps, xs);
     let mut sum = [acc];
-    let end = xs.get(xs.len()..).map(<[f32]>::as_ptr);
-    if let (Some(end), true) = (end, groups > 0) {
-        // SAFETY: `end` is one past the last sample. A pass reads taps[8j .. 8j+8] (two
-        // `vldmia` with write-back) and the 8 samples below the sample pointer (two `vldmdb`);
-        // after `groups` passes that is taps[..8·groups] and xs[len − 8·groups ..], inside
-        // both. `f32` slices are 4-byte aligned, as `vldm` needs. The only memory written is
-        // `sum`, a local `[f32; 1]` read first and stored last (s-registers cannot be operands
-        // on this target, see `four_outputs_f32`); the stack is untouched; `subs` clobbers the
-        // flags; every register written is an operand or declared clobbered.
-        unsafe {
-            asm!(
-                "vldr s0, [{sum}]",
-                "2:",
-                "vldmia {h}!, {{s8-s11}}",
-                "vldmdb {x}!, {{s12-s15}}",
-                "vmla.f32 s0, s8, s15",
-                "vmla.f32 s0, s9, s14",
-                "vmla.f32 s0, s10, s13",
-                "vmla.f32 s0, s11, s12",
-                "vldmia {h}!, {{s8-s11}}",
-                "vldmdb {x}!, {{s12-s15}}",
-                "vmla.f32 s0, s8, s15",
-                "vmla.f32 s0, s9, s14",
-                "vmla.f32 s0, s10, s13",
-                "vmla.f32 s0, s11, s12",
-                "subs {n}, {n}, #1",
-                "bne 2b",
-                "vstr s0, [{sum}]",
-                x = inout(reg) end => _,
-                h = inout(reg) taps.as_ptr() => _,
-                n = inout(reg) groups => _,
-                sum = in(reg) sum.as_mut_ptr(),
-                out("s0") _,
-                out("s8") _,
-                out("s9") _,
-                out("s10") _,
-                out("s11") _,
-                out("s12") _,
-                out("s13") _,
-                out("s14") _,
-                out("s15") _,
-                options(nostack),
-            );
-        }
+    // SAFETY: `end` is one past the last sample. A four-tap step reads 4 taps (`vldmia` with
+    // write-back) and the 4 samples below the sample pointer (`vldmdb`); a one-tap step of the
+    // remainder reads 1 of each the same way. Every tap is taken once, so that is taps[..len]
+    // and xs[..len], inside both. `f32` slices are 4-byte aligned, as `vldm` needs. The only
+    // memory written is `sum`, a local `[f32; 1]` read first and stored last (s-registers
+    // cannot be operands on this target, see `four_outputs_f32`); the stack is untouched; the
+    // flags are clobbered; every register written is an operand or declared clobbered.
+    unsafe {
+        asm!(
+            "vldr s0, [{sum}]",
+            unit_loop!(
+                8,
+                [f32_one_step!(), f32_one_step!()],
+                [
+                    "cmp {n}, #4\n",
+                    "blt 4f\n",
+                    f32_one_step!(),
+                    "subs {n}, {n}, #4\n",
+                    "beq 5f\n",
+                    "4:\n",
+                    "vldmia {h}!, {{s8}}\n",
+                    "vldmdb {x}!, {{s12}}\n",
+                    "vmla.f32 s0, s8, s12\n",
+                    "subs {n}, {n}, #1\n",
+                    "bne 4b\n",
+                ]
+            ),
+            "vstr s0, [{sum}]",
+            x = inout(reg) end => _,
+            h = inout(reg) taps.as_ptr() => _,
+            n = inout(reg) taps.len() => _,
+            sum = in(reg) sum.as_mut_ptr(),
+            out("s0") _,
+            out("s8") _,
+            out("s9") _,
+            out("s10") _,
+            out("s11") _,
+            out("s12") _,
+            out("s13") _,
+            out("s14") _,
+            out("s15") _,
+            options(nostack),
+        );
     }
-    let done = if end.is_some() { 8 * groups } else { 0 };
-    let [acc] = add_remaining(sum, taps, xs, done, portable_f32);
+    let [acc] = sum;
     acc
 }
 

@@ -68,3 +68,23 @@ fn add_remaining<T, X, A: Copy, const K: usize>(
     }
     sums
 }
+
+/// Adds the last tap of an odd length, k = L − 1, to each of the K sums of a Q15 kernel whose
+/// assembly took the taps in pairs: output m takes it against `window[m]`
+/// (`window[L − 1 + m − k]`). Nothing for an even length.
+#[cfg(tapline_arm_dsp)]
+#[inline(always)]
+fn add_odd_tap<T: Copy, X: Copy, A: Copy, const K: usize>(
+    mut sums: [A; K],
+    taps: &[T],
+    window: &[X],
+    sum: impl Fn(A, &[T], &[X]) -> A,
+) -> [A; K] {
+    if taps.len() % 2 == 1 {
+        let last = taps.get(taps.len() - 1..).unwrap_or(&[]);
+        for (m, acc) in sums.iter_mut().enumerate() {
+            *acc = sum(*acc, last, window.get(m..=m).unwrap_or(&[]));
+        }
+    }
+    sums
+}
