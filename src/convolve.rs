@@ -14,10 +14,14 @@
 //!
 //! Numeric behaviour is that of [`Fir`](crate::Fir): exact accumulation for fixed point, one
 //! rounding step, saturation (counted in the returned value), float in ascending kernel index.
+//! [`convolve`] and [`correlate`] take every sample type and round fixed point half up (the
+//! default of every filter, [`Rounding::HalfUp`]); [`convolve_with_rounding`] and
+//! [`correlate_with_rounding`] choose the rounding and exist for fixed point only, since a
+//! float result has no rounding step to choose.
 
 use crate::Error;
 use crate::kernel::dot;
-use crate::num::{DefaultAcc, MulAcc, Rounding, Sample};
+use crate::num::{DefaultAcc, FixedPoint, MulAcc, Rounding, Sample};
 
 /// Which part of the full result to produce.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -98,8 +102,9 @@ fn check<S, T>(
 /// returns how many outputs saturated.
 ///
 /// **Accumulator / rounding / saturation:** as [`MulAcc`] for `S` and `T`: exact sums for fixed
-/// point, then one `rounding` step and a clamp to the range of `S`. **Float:** ascending kernel
-/// index, no FMA; `rounding` is ignored.
+/// point, then one [`Rounding::HalfUp`] step (ties toward +∞; choose another mode with
+/// [`convolve_with_rounding`]) and a clamp to the range of `S`. **Float:** ascending kernel
+/// index, no FMA, no rounding step; NaN and ∞ propagate.
 ///
 /// # Errors
 /// * [`Error::EmptyInput`] if either operand is empty;
@@ -108,18 +113,65 @@ fn check<S, T>(
 ///   in the full range of `S`.
 ///
 /// ```
-/// use tapline::{convolve, Rounding, Span};
+/// use tapline::{convolve, Span};
 /// let mut out = [0.0f64; 4];
-/// convolve(&[1.0, 2.0, 3.0], &[0.0, 1.0], &mut out, Span::Full, Rounding::HalfUp)?;
+/// convolve(&[1.0, 2.0, 3.0], &[0.0, 1.0], &mut out, Span::Full)?;
 /// assert_eq!(out, [0.0, 1.0, 2.0, 3.0]);
 ///
 /// // Q15: (-1.0) * (-1.0) = +1.0 does not fit and saturates to 1 − 2^-15.
 /// let mut q = [0i16; 1];
-/// let saturated = convolve(&[i16::MIN], &[i16::MIN], &mut q, Span::Full, Rounding::HalfUp)?;
+/// let saturated = convolve(&[i16::MIN], &[i16::MIN], &mut q, Span::Full)?;
 /// assert_eq!((q[0], saturated), (i16::MAX, 1));
+/// // Half an LSB rounds up: 1 · 0.5 in Q15 is 0.5 LSB → 1.
+/// convolve(&[1i16], &[16384i16], &mut q, Span::Full)?;
+/// assert_eq!(q[0], 1);
 /// # Ok::<(), tapline::Error>(())
 /// ```
 pub fn convolve<S: MulAcc<T>, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+) -> Result<usize, Error> {
+    convolve_rounded(signal, kernel, out, span, Rounding::HalfUp)
+}
+
+/// [`convolve`] with the output step's rounding mode chosen: fixed point only.
+///
+/// **Rounding:** `rounding` applies once per output, to the exact sum ÷ 2^F (F = the tap
+/// format's fractional bits). **Saturation / errors:** as [`convolve`].
+///
+/// ```
+/// use tapline::{convolve_with_rounding, Rounding, Span};
+/// let mut q = [0i16; 1];
+/// // 1 · 0.5 in Q15 is exactly half an LSB: truncation drops it, half-up keeps it.
+/// convolve_with_rounding(&[1i16], &[16384i16], &mut q, Span::Full, Rounding::Truncate)?;
+/// assert_eq!(q[0], 0);
+/// // Full scale still saturates, whatever the rounding.
+/// let n = convolve_with_rounding(&[i16::MIN], &[i16::MIN], &mut q, Span::Full, Rounding::HalfEven)?;
+/// assert_eq!((q[0], n), (i16::MAX, 1));
+/// # Ok::<(), tapline::Error>(())
+/// ```
+///
+/// Floats have no rounding step to choose, so they cannot call it:
+///
+/// ```compile_fail
+/// use tapline::{convolve_with_rounding, Rounding, Span};
+/// let mut out = [0.0f32; 2];
+/// convolve_with_rounding(&[1.0f32], &[1.0f32, 2.0], &mut out, Span::Full, Rounding::HalfUp);
+/// ```
+pub fn convolve_with_rounding<S: MulAcc<T> + FixedPoint, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+    rounding: Rounding,
+) -> Result<usize, Error> {
+    convolve_rounded(signal, kernel, out, span, rounding)
+}
+
+/// The convolution with a rounding mode; floats ignore it (their `finish` has no rounding).
+fn convolve_rounded<S: MulAcc<T>, T: Sample>(
     signal: &[S],
     kernel: &[T],
     out: &mut [S],
@@ -152,18 +204,62 @@ pub fn convolve<S: MulAcc<T>, T: Sample>(
 /// outputs saturated. With [`Span::Valid`] and K ≤ L this is Σ_k kernel\[k\]·signal\[i + k\]:
 /// sliding the kernel along the signal, e.g. to find a known pulse shape.
 ///
-/// Numeric behaviour and errors as [`convolve`].
+/// Numeric behaviour (fixed point rounded [`Rounding::HalfUp`]; see
+/// [`correlate_with_rounding`]) and errors as [`convolve`].
 ///
 /// ```
-/// use tapline::{correlate, Rounding, Span};
+/// use tapline::{correlate, Span};
 /// let mut out = [0i32; 3];
 /// // Find the pulse [1, 2] (Q31 ½ and 1−2^-31… kept small here) in a signal: peak at index 1.
 /// let pulse = [1 << 29, 1 << 30];
-/// correlate(&[0, 1 << 20, 2 << 20, 0], &pulse, &mut out, Span::Valid, Rounding::HalfUp)?;
+/// correlate(&[0, 1 << 20, 2 << 20, 0], &pulse, &mut out, Span::Valid)?;
 /// assert!(out[1] > out[0] && out[1] > out[2]);
+/// // Floats need no rounding argument either.
+/// let mut f = [0.0f32; 2];
+/// correlate(&[1.0f32, 2.0], &[1.0f32], &mut f, Span::Full)?;
+/// assert_eq!(f, [1.0, 2.0]);
 /// # Ok::<(), tapline::Error>(())
 /// ```
 pub fn correlate<S: MulAcc<T>, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+) -> Result<usize, Error> {
+    correlate_rounded(signal, kernel, out, span, Rounding::HalfUp)
+}
+
+/// [`correlate`] with the output step's rounding mode chosen: fixed point only (as
+/// [`convolve_with_rounding`]).
+///
+/// ```
+/// use tapline::{correlate_with_rounding, Rounding, Span};
+/// let mut q = [0i16; 1];
+/// // −0.5 LSB: half-up gives 0, truncation (toward −∞) gives −1.
+/// correlate_with_rounding(&[-1i16], &[16384i16], &mut q, Span::Full, Rounding::Truncate)?;
+/// assert_eq!(q[0], -1);
+/// correlate_with_rounding(&[i16::MIN], &[i16::MIN], &mut q, Span::Full, Rounding::HalfUp)?;
+/// assert_eq!(q[0], i16::MAX);
+/// # Ok::<(), tapline::Error>(())
+/// ```
+///
+/// ```compile_fail
+/// use tapline::{correlate_with_rounding, Rounding, Span};
+/// let mut out = [0.0f64; 1];
+/// correlate_with_rounding(&[1.0f64], &[1.0f64], &mut out, Span::Full, Rounding::Truncate);
+/// ```
+pub fn correlate_with_rounding<S: MulAcc<T> + FixedPoint, T: Sample>(
+    signal: &[S],
+    kernel: &[T],
+    out: &mut [S],
+    span: Span,
+    rounding: Rounding,
+) -> Result<usize, Error> {
+    correlate_rounded(signal, kernel, out, span, rounding)
+}
+
+/// The correlation with a rounding mode; floats ignore it.
+fn correlate_rounded<S: MulAcc<T>, T: Sample>(
     signal: &[S],
     kernel: &[T],
     out: &mut [S],

@@ -88,7 +88,7 @@ pub mod ring;
 #[cfg(feature = "cli")]
 pub mod tool;
 
-pub use convolve::{Span, convolve, correlate};
+pub use convolve::{Span, convolve, convolve_with_rounding, correlate, correlate_with_rounding};
 pub use error::Error;
 pub use filter::{DecimatorUpTo, Fir, FirUpTo, GroupDelay, MultiChannelFirUpTo};
 

@@ -10,7 +10,10 @@ use fixed::types::{I1F15, I1F31, I4F12, I8F24, I16F16};
 use fixed::{FixedI16, types::extra::U0};
 use proptest::prelude::*;
 use tapline::num::DefaultAcc;
-use tapline::{Error, Fir, Ring, Rounding, Span, convolve, correlate};
+use tapline::{
+    Error, Fir, Ring, Rounding, Span, convolve, convolve_with_rounding, correlate,
+    correlate_with_rounding,
+};
 
 fn rounding() -> impl Strategy<Value = Rounding> {
     prop::sample::select(Rounding::ALL.to_vec())
@@ -274,22 +277,22 @@ proptest! {
             let (len, first) = span.layout(x.len(), h.len());
             let model: Vec<(i128, bool)> = full[first..first + len].iter().map(|&a| finish_exact(a, 15, 16, mode)).collect();
             let mut out = vec![0i16; len];
-            let sat = convolve(&xs, &hs, &mut out, span, mode).unwrap();
+            let sat = convolve_with_rounding(&xs, &hs, &mut out, span, mode).unwrap();
             prop_assert_eq!(out.iter().map(|&v| i128::from(v)).collect::<Vec<_>>(), model.iter().map(|m| m.0).collect::<Vec<_>>());
             prop_assert_eq!(sat, model.iter().filter(|m| m.1).count());
 
             let mut swapped = vec![0i16; len];
-            convolve(&hs, &xs, &mut swapped, span, mode).unwrap();
+            convolve_with_rounding(&hs, &xs, &mut swapped, span, mode).unwrap();
             prop_assert_eq!(&swapped, &out);
 
             let (len, first) = span.correlation_layout(x.len(), h.len());
             let mut corr = vec![0i16; len];
-            correlate(&xs, &hs, &mut corr, span, mode).unwrap();
+            correlate_with_rounding(&xs, &hs, &mut corr, span, mode).unwrap();
             let model: Vec<i128> = full_corr[first..first + len].iter().map(|&a| finish_exact(a, 15, 16, mode).0).collect();
             prop_assert_eq!(corr.iter().map(|&v| i128::from(v)).collect::<Vec<_>>(), model);
 
             let mut wrong = vec![0i16; len + 1];
-            prop_assert_eq!(convolve(&xs, &hs, &mut wrong, span, mode), Err(Error::OutputLength { expected: len, found: len + 1 }));
+            prop_assert_eq!(convolve_with_rounding(&xs, &hs, &mut wrong, span, mode), Err(Error::OutputLength { expected: len, found: len + 1 }));
         }
     }
 
@@ -304,9 +307,9 @@ proptest! {
         let magnitude = convolve_full_f64(&abs_x, &abs_h);
         let k = x.len().min(h.len());
         let mut out = vec![0.0; full.len()];
-        convolve(&x, &h, &mut out, Span::Full, Rounding::HalfUp).unwrap();
+        convolve(&x, &h, &mut out, Span::Full).unwrap();
         prop_assert_eq!(&out, &full);
-        convolve(&h, &x, &mut out, Span::Full, Rounding::HalfUp).unwrap();
+        convolve(&h, &x, &mut out, Span::Full).unwrap();
         for i in 0..full.len() {
             prop_assert!((out[i] - full[i]).abs() <= 2.0 * gamma(k, U_F64) * magnitude[i]);
         }
@@ -314,7 +317,7 @@ proptest! {
         let abs_h_rev: Vec<f64> = abs_h.iter().rev().copied().collect();
         let corr_ref = convolve_full_f64(&x, &h_rev);
         let corr_magnitude = convolve_full_f64(&abs_x, &abs_h_rev);
-        correlate(&x, &h, &mut out, Span::Full, Rounding::HalfUp).unwrap();
+        correlate(&x, &h, &mut out, Span::Full).unwrap();
         for i in 0..full.len() {
             prop_assert!((out[i] - corr_ref[i]).abs() <= 2.0 * gamma(k, U_F64) * corr_magnitude[i]);
         }
@@ -325,11 +328,11 @@ proptest! {
 fn empty_operands_are_errors() {
     let mut out = [0i16; 1];
     assert_eq!(
-        convolve::<i16, i16>(&[], &[1], &mut out, Span::Full, Rounding::HalfUp),
+        convolve::<i16, i16>(&[], &[1], &mut out, Span::Full),
         Err(Error::EmptyInput)
     );
     assert_eq!(
-        correlate::<i16, i16>(&[1], &[], &mut out, Span::Valid, Rounding::HalfUp),
+        correlate_with_rounding::<i16, i16>(&[1], &[], &mut out, Span::Valid, Rounding::Truncate),
         Err(Error::EmptyInput)
     );
 }

@@ -92,13 +92,13 @@ fn every_way<
 /// the same taps, bit for bit, every way of calling it.
 fn check_fixed<S, T, W, const N: usize>(h: &[i64], x: &[i64], sizes: &[usize], mode: Rounding)
 where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + Raw + tapline::num::FixedPoint,
     T: Sample + Raw + 'static,
     W: RuntimeChecked,
 {
     let taps: &'static [T] = Vec::leak(h.iter().map(|&v| T::from_raw(v)).collect());
     let table: &'static [T; N] = taps.try_into().unwrap();
-    let xs: Vec<S> = x.iter().map(|&v| S::from_raw(v)).collect();
+    let xs: Vec<S> = x.iter().map(|&v| <S as Raw>::from_raw(v)).collect();
     let fixed = Fir::<S, N, T, W>::with_accumulator(table);
     let run_time = FirUpTo::<S, CAP, T, W>::with_taps(taps);
     let (mut fixed, mut run_time) = match (fixed, run_time) {
@@ -118,8 +118,8 @@ where
     };
     assert_eq!(run_time.tap_count(), N);
     assert_eq!(run_time.capacity(), CAP);
-    let (want, saturations) = exact(h, x, T::FRAC, S::BITS, mode);
-    let want: Vec<S> = want.into_iter().map(S::from_raw).collect();
+    let (want, saturations) = exact(h, x, T::FRAC, <S as Raw>::BITS, mode);
+    let want: Vec<S> = want.into_iter().map(<S as Raw>::from_raw).collect();
     let compile_time: Vec<S> = xs.iter().map(|&v| fixed.push(v)).collect();
     assert_eq!(compile_time, want);
     for (way, (got, count)) in every_way(&mut run_time, &xs, sizes).into_iter().enumerate() {

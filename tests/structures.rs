@@ -222,7 +222,7 @@ fn check_linear_phase<S, T, W, const N: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: FoldMulAcc<T, W> + Raw,
+    S: FoldMulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
@@ -242,7 +242,7 @@ fn check_linear_phase<S, T, W, const N: usize>(
                 (a, b),
                 (Error::AccumulatorOverflow, Error::AccumulatorOverflow)
             );
-            assert!(overflows(h, S::BITS, acc_bits));
+            assert!(overflows(h, <S as Raw>::BITS, acc_bits));
             return;
         }
         (a, b) => panic!(
@@ -251,7 +251,7 @@ fn check_linear_phase<S, T, W, const N: usize>(
             b.err()
         ),
     };
-    assert!(!overflows(h, S::BITS, acc_bits));
+    assert!(!overflows(h, <S as Raw>::BITS, acc_bits));
     assert_eq!(
         folded.multiplies(),
         if symmetric { N.div_ceil(2) } else { N / 2 }
@@ -259,13 +259,16 @@ fn check_linear_phase<S, T, W, const N: usize>(
     assert_eq!(folded.group_delay().half_samples(), N - 1);
 
     let xs: Vec<S> = raws(x);
-    let (want, sats) = expected::<S>(&fir_finished(h, x, T::FRAC, S::BITS, mode));
+    let (want, sats) = expected::<S>(&fir_finished(h, x, T::FRAC, <S as Raw>::BITS, mode));
     let from_plain: Vec<S> = xs.iter().map(|&v| plain.push(v)).collect();
     assert_eq!(from_plain, want, "the plain FIR itself");
     run_same_rate(&mut folded, &xs, sizes, &want, sats);
 
     // The worst-case input for these taps after the random history: folded = plain still.
-    let (x_max, x_min) = ((1i64 << (S::BITS - 1)) - 1, -(1i64 << (S::BITS - 1)));
+    let (x_max, x_min) = (
+        (1i64 << (<S as Raw>::BITS - 1)) - 1,
+        -(1i64 << (<S as Raw>::BITS - 1)),
+    );
     let worst: Vec<i64> = h
         .iter()
         .rev()
@@ -273,7 +276,7 @@ fn check_linear_phase<S, T, W, const N: usize>(
         .chain(h.iter().rev().map(|&t| if t > 0 { x_min } else { x_max }))
         .collect();
     let tail: Vec<i64> = x.iter().chain(&worst).copied().collect();
-    let (want, _) = expected::<S>(&fir_finished(h, &tail, T::FRAC, S::BITS, mode));
+    let (want, _) = expected::<S>(&fir_finished(h, &tail, T::FRAC, <S as Raw>::BITS, mode));
     folded.reset();
     let got: Vec<S> = raws::<S>(&tail).iter().map(|&v| folded.push(v)).collect();
     assert_eq!(got, want, "worst-case input");
@@ -330,7 +333,7 @@ fn check_decimator<S, T, W, const N: usize, const M: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
@@ -339,14 +342,17 @@ fn check_decimator<S, T, W, const N: usize, const M: usize>(
         Ok(d) => d.with_rounding(mode),
         Err(e) => {
             assert_eq!(e, Error::AccumulatorOverflow);
-            assert!(overflows(h, S::BITS, acc_bits));
+            assert!(overflows(h, <S as Raw>::BITS, acc_bits));
             return;
         }
     };
-    assert!(!overflows(h, S::BITS, acc_bits));
+    assert!(!overflows(h, <S as Raw>::BITS, acc_bits));
     assert_eq!(dec.factor(), M);
     // "Full-rate FIR, then keep every M-th output", from the model.
-    let (want, sats) = expected::<S>(&keep_every(&fir_finished(h, x, T::FRAC, S::BITS, mode), M));
+    let (want, sats) = expected::<S>(&keep_every(
+        &fir_finished(h, x, T::FRAC, <S as Raw>::BITS, mode),
+        M,
+    ));
     run_decimating(&mut dec, M, &raws::<S>(x), sizes, &want, sats);
 }
 
@@ -383,7 +389,7 @@ fn check_half_band<S, T, const N: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T> + Raw,
+    S: MulAcc<T> + FixedPoint + Raw,
     T: Sample + Raw,
 {
     let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
@@ -392,14 +398,17 @@ fn check_half_band<S, T, const N: usize>(
         Err(Error::NotHalfBand) => return assert!(spoilt, "refused half-band taps {h:?}"),
         Err(e) => {
             assert_eq!(e, Error::AccumulatorOverflow);
-            return assert!(overflows(h, S::BITS, 64));
+            return assert!(overflows(h, <S as Raw>::BITS, 64));
         }
     };
     assert!(!spoilt, "accepted taps that are not half-band: {h:?}");
     let c = N / 2;
     let odd_distance = (0..N).filter(|&k| k.abs_diff(c) % 2 == 1).count();
     assert_eq!(hb.multiplies(), odd_distance + 1);
-    let (want, sats) = expected::<S>(&keep_every(&fir_finished(h, x, T::FRAC, S::BITS, mode), 2));
+    let (want, sats) = expected::<S>(&keep_every(
+        &fir_finished(h, x, T::FRAC, <S as Raw>::BITS, mode),
+        2,
+    ));
     run_decimating(&mut hb, 2, &raws::<S>(x), sizes, &want, sats);
 }
 
@@ -445,14 +454,14 @@ fn check_resampler<S, T, W>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
     let taps: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
     let phase_overflows = (0..l).any(|p| {
         let phase: Vec<i64> = h.iter().skip(p).step_by(l).copied().collect();
-        overflows(&phase, S::BITS, acc_bits)
+        overflows(&phase, <S as Raw>::BITS, acc_bits)
     });
     let too_long = h.len().div_ceil(l) > RESAMPLER_CAPACITY;
     let built =
@@ -478,7 +487,15 @@ fn check_resampler<S, T, W>(
         !phase_overflows,
         "accepted taps with a phase that overflows: {h:?}"
     );
-    let (want, sats) = expected::<S>(&resample_finished(h, x, l, m, T::FRAC, S::BITS, mode));
+    let (want, sats) = expected::<S>(&resample_finished(
+        h,
+        x,
+        l,
+        m,
+        T::FRAC,
+        <S as Raw>::BITS,
+        mode,
+    ));
     let xs: Vec<S> = raws(x);
     assert_eq!(
         rs.outputs_for(xs.len()),
@@ -548,14 +565,14 @@ fn check_interpolator<S, T, W, const N: usize, const L: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
     let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
     let phase_overflows = (0..L).any(|p| {
         let phase: Vec<i64> = h.iter().skip(p).step_by(L).copied().collect();
-        overflows(&phase, S::BITS, acc_bits)
+        overflows(&phase, <S as Raw>::BITS, acc_bits)
     });
     let mut up = match Interpolator::<S, N, L, T, W>::with_accumulator(&taps) {
         Ok(u) => u.with_rounding(mode),
@@ -569,7 +586,13 @@ fn check_interpolator<S, T, W, const N: usize, const L: usize>(
         "accepted taps with a phase that overflows: {h:?}"
     );
     // "Zero-stuff, then the FIR", from the model.
-    let (want, sats) = expected::<S>(&fir_finished(h, &zero_stuff(x, L), T::FRAC, S::BITS, mode));
+    let (want, sats) = expected::<S>(&fir_finished(
+        h,
+        &zero_stuff(x, L),
+        T::FRAC,
+        <S as Raw>::BITS,
+        mode,
+    ));
     let xs: Vec<S> = raws(x);
     let got: Vec<S> = xs.iter().flat_map(|&v| up.push(v)).collect();
     assert_eq!(got, want, "per sample");
@@ -623,7 +646,7 @@ fn check_multichannel<S, T, const N: usize, const C: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T> + Raw,
+    S: MulAcc<T> + FixedPoint + Raw,
     T: Sample + Raw,
 {
     let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
@@ -631,7 +654,7 @@ fn check_multichannel<S, T, const N: usize, const C: usize>(
         Ok(f) => f.with_rounding(mode),
         Err(e) => {
             assert_eq!(e, Error::AccumulatorOverflow);
-            return assert!(overflows(h, S::BITS, 64));
+            return assert!(overflows(h, <S as Raw>::BITS, 64));
         }
     };
     let x = &x[..x.len() / C * C];
@@ -639,7 +662,7 @@ fn check_multichannel<S, T, const N: usize, const C: usize>(
     let per_channel: Vec<Vec<(i128, bool)>> = (0..C)
         .map(|c| {
             let xc: Vec<i64> = x.iter().skip(c).step_by(C).copied().collect();
-            fir_finished(h, &xc, T::FRAC, S::BITS, mode)
+            fir_finished(h, &xc, T::FRAC, <S as Raw>::BITS, mode)
         })
         .collect();
     let model: Vec<(i128, bool)> = (0..x.len()).map(|i| per_channel[i % C][i / C]).collect();

@@ -8,7 +8,8 @@ use tapline_model as common;
 
 use arbitrary::Arbitrary;
 use libfuzzer_sys::fuzz_target;
-use tapline::{Error, MulAcc, Rounding, Span, convolve, correlate};
+use tapline::num::FixedPoint;
+use tapline::{Error, MulAcc, Rounding, Span, convolve_with_rounding, correlate_with_rounding};
 
 #[derive(Debug, Arbitrary)]
 struct Case {
@@ -22,13 +23,13 @@ struct Case {
 
 fn check<S>(signal: &[S], kernel: &[S], span: Span, mode: Rounding, delta: i8)
 where
-    S: MulAcc<S, Acc = i64> + common::Raw + Default + Copy,
+    S: MulAcc<S, Acc = i64> + FixedPoint + Default + Copy,
 {
     let (len, first) = span.layout(signal.len(), kernel.len());
     let (corr_len, corr_first) = span.correlation_layout(signal.len(), kernel.len());
     let out_len = (len as isize + isize::from(delta)).max(0) as usize;
     let mut out = vec![S::default(); out_len];
-    let result = convolve(signal, kernel, &mut out, span, mode);
+    let result = convolve_with_rounding(signal, kernel, &mut out, span, mode);
     let x: Vec<i64> = signal.iter().map(|v| v.raw()).collect();
     let h: Vec<i64> = kernel.iter().map(|v| v.raw()).collect();
     if signal.is_empty() || kernel.is_empty() {
@@ -67,7 +68,7 @@ where
     let h_rev: Vec<i64> = h.iter().rev().copied().collect();
     let full = common::convolve_full_exact(&x, &h_rev);
     let mut corr = vec![S::default(); corr_len];
-    correlate(signal, kernel, &mut corr, span, mode).expect("valid correlation");
+    correlate_with_rounding(signal, kernel, &mut corr, span, mode).expect("valid correlation");
     assert!(
         corr.iter()
             .zip(&full[corr_first..corr_first + corr_len])

@@ -4,7 +4,9 @@ use super::GroupDelay;
 use super::shared::OutputStep;
 use super::taps::{TapTable, span_for};
 use crate::headroom::{AccTrace, CheckedTaps, ProvenTaps, proof_holds};
-use crate::num::{Acc32, Acc32Checked, DefaultAcc, MulAcc, Rounding, RuntimeChecked, Sample};
+use crate::num::{
+    Acc32, Acc32Checked, DefaultAcc, FixedPoint, MulAcc, Rounding, RuntimeChecked, Sample,
+};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -256,16 +258,38 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample + 'a, W, H: TapTable<'a, T, 
         }
     }
 
-    /// The same filter with another rounding mode for its output step.
+    /// The same filter with another rounding mode for its output step (default
+    /// [`Rounding::HalfUp`]). Fixed point only: a float output has no rounding step to choose.
+    ///
+    /// ```
+    /// use tapline::{Fir, Rounding};
+    /// static HALF: [i16; 1] = [16384]; // 0.5
+    /// let mut fir = Fir::<i16, 1>::new(&HALF)?.with_rounding(Rounding::Truncate);
+    /// assert_eq!((fir.push(-1), fir.rounding()), (-1, Rounding::Truncate)); // −½ LSB floors
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    ///
+    /// ```compile_fail
+    /// use tapline::{Fir, Rounding};
+    /// static TAPS: [f32; 2] = [0.5, 0.5];
+    /// let fir = Fir::<f32, 2>::new(&TAPS).unwrap().with_rounding(Rounding::Truncate);
+    /// ```
     #[must_use]
-    pub fn with_rounding(mut self, rounding: Rounding) -> Self {
+    pub fn with_rounding(mut self, rounding: Rounding) -> Self
+    where
+        S: FixedPoint,
+    {
         self.output.set_rounding(rounding);
         self
     }
 
-    /// The rounding mode of the output step.
+    /// The rounding mode of the output step (fixed point only, as
+    /// [`with_rounding`](Fir::with_rounding)).
     #[must_use]
-    pub fn rounding(&self) -> Rounding {
+    pub fn rounding(&self) -> Rounding
+    where
+        S: FixedPoint,
+    {
         self.output.rounding()
     }
 

@@ -104,16 +104,23 @@ impl OutputStep {
 macro_rules! output_controls {
     ($($field:ident).+) => {
         /// The same structure with another rounding mode for its output step (default
-        /// [`Rounding::HalfUp`](crate::Rounding::HalfUp)).
+        /// [`Rounding::HalfUp`](crate::Rounding::HalfUp)). Fixed point only: a float output
+        /// has no rounding step to choose.
         #[must_use]
-        pub fn with_rounding(mut self, rounding: crate::Rounding) -> Self {
+        pub fn with_rounding(mut self, rounding: crate::Rounding) -> Self
+        where
+            S: crate::num::FixedPoint,
+        {
             self.$($field).+.set_rounding(rounding);
             self
         }
 
-        /// The rounding mode of the output step.
+        /// The rounding mode of the output step (fixed point only).
         #[must_use]
-        pub fn rounding(&self) -> crate::Rounding {
+        pub fn rounding(&self) -> crate::Rounding
+        where
+            S: crate::num::FixedPoint,
+        {
             self.$($field).+.rounding()
         }
 

@@ -273,14 +273,14 @@ pub fn check_fixed_fir<S, T, W, const N: usize>(
     sizes: &[usize],
     mode: Rounding,
 ) where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + Raw + tapline::num::FixedPoint,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
     let taps: [T; N] = core::array::from_fn(|k| T::from_raw(h[k]));
-    let xs: Vec<S> = x.iter().map(|&v| S::from_raw(v)).collect();
+    let xs: Vec<S> = x.iter().map(|&v| <S as Raw>::from_raw(v)).collect();
 
-    let x_max = (1i64 << (S::BITS - 1)) - 1;
+    let x_max = (1i64 << (<S as Raw>::BITS - 1)) - 1;
     let x_min = -x_max - 1;
     // The input that drives the sum to each extreme: every x[n−k] at the end of the range whose
     // product with h[k] is largest (resp. smallest).
@@ -319,9 +319,12 @@ pub fn check_fixed_fir<S, T, W, const N: usize>(
 
     let model: Vec<(i128, bool)> = fir_exact(h, x)
         .into_iter()
-        .map(|acc| finish_exact(acc, T::FRAC, S::BITS, mode))
+        .map(|acc| finish_exact(acc, T::FRAC, <S as Raw>::BITS, mode))
         .collect();
-    let expected: Vec<S> = model.iter().map(|&(v, _)| S::from_raw(v as i64)).collect();
+    let expected: Vec<S> = model
+        .iter()
+        .map(|&(v, _)| <S as Raw>::from_raw(v as i64))
+        .collect();
     let expected_saturations = model.iter().filter(|&&(_, s)| s).count() as u32;
 
     let per_sample: Vec<S> = xs.iter().map(|&v| fir.push(v)).collect();
@@ -365,8 +368,8 @@ pub fn check_fixed_fir<S, T, W, const N: usize>(
     let model_tail = fir_exact(h, &tail);
     fir.reset();
     for (n, &v) in tail.iter().enumerate() {
-        let y = fir.push(S::from_raw(v));
-        let (want, _) = finish_exact(model_tail[n], T::FRAC, S::BITS, mode);
-        assert_eq!(y.raw(), want as i64, "worst-case input at {n}");
+        let y = fir.push(<S as Raw>::from_raw(v));
+        let (want, _) = finish_exact(model_tail[n], T::FRAC, <S as Raw>::BITS, mode);
+        assert_eq!(Raw::raw(y), want as i64, "worst-case input at {n}");
     }
 }

@@ -281,19 +281,16 @@ const _: () = assert!(MAX_TAPS <= MAX_REPLAY_TAPS);
 /// 64 KiB for `f64`.
 type Boxed<'t, S, W = DefaultAcc> = Box<FirUpTo<'t, S, MAX_REPLAY_TAPS, S, W>>;
 
-/// One filter per channel on `taps`, each with its own history (floats ignore `rounding`).
-fn per_channel<'t, S, W>(
-    taps: &'t [S],
-    rounding: Rounding,
-    channels: usize,
-) -> Result<Vec<Boxed<'t, S, W>>, Failure>
+/// One filter per channel on `taps`, each with its own history and the default rounding
+/// (fixed-point callers set theirs with `with_rounding`).
+fn per_channel<'t, S, W>(taps: &'t [S], channels: usize) -> Result<Vec<Boxed<'t, S, W>>, Failure>
 where
     S: MulAcc<S, W>,
     W: RuntimeChecked,
 {
     (0..channels)
         .map(|_| match FirUpTo::with_taps(taps) {
-            Ok(fir) => Ok(Box::new(fir.with_rounding(rounding))),
+            Ok(fir) => Ok(Box::new(fir)),
             Err(Error::TooManyTaps { capacity, found }) => Err(Failure::plain(format!(
                 "replay: expected at most {capacity} taps, found {found}"
             ))),
@@ -316,8 +313,11 @@ where
     S::Acc: Into<i128>,
     W: RuntimeChecked,
 {
-    let mut firs = per_channel::<S, W>(codes, rounding, traces.len())?;
-    let mut references = per_channel::<f64, DefaultAcc>(ideal, rounding, traces.len())?;
+    let mut firs: Vec<Boxed<'_, S, W>> = per_channel::<S, W>(codes, traces.len())?
+        .into_iter()
+        .map(|fir| Box::new(fir.with_rounding(rounding)))
+        .collect();
+    let mut references = per_channel::<f64, DefaultAcc>(ideal, traces.len())?;
     feed(&mut |channel: usize, x: f64| {
         match (
             firs.get_mut(channel),
@@ -345,8 +345,8 @@ fn drive_float(
     channels: usize,
     feed: &mut Feed,
 ) -> Result<(), Failure> {
-    let mut firs = per_channel::<f32, DefaultAcc>(taps, Rounding::default(), channels)?;
-    let mut references = per_channel::<f64, DefaultAcc>(ideal, Rounding::default(), channels)?;
+    let mut firs = per_channel::<f32, DefaultAcc>(taps, channels)?;
+    let mut references = per_channel::<f64, DefaultAcc>(ideal, channels)?;
     feed(
         &mut |channel: usize, x: f64| match (firs.get_mut(channel), references.get_mut(channel)) {
             (Some(fir), Some(reference)) => {

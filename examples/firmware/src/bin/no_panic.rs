@@ -16,7 +16,7 @@ use tapline::num::Acc128;
 use tapline::{
     CicDecimator, Decimator, DecimatorUpTo, Fir, FirUpTo, GroupDelay, HalfBandDecimator,
     Interpolator, LinearPhaseFir, MovingAverage, MultiChannelFir, MultiChannelFirUpTo, Resampler,
-    Ring, Rounding, Span, convolve, correlate,
+    Ring, Rounding, Span, convolve, convolve_with_rounding, correlate, correlate_with_rounding,
 };
 use tapline_firmware::{SMOOTH_64, Smooth64};
 
@@ -168,8 +168,10 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
     for span in [Span::Full, Span::Same, Span::Valid] {
         let (out_len, _) = span.layout(len, h_len);
         if let Some(out) = conv.get_mut(..out_len) {
-            let _ = convolve(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
-            let _ = correlate(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ = convolve_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ = correlate_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ = convolve(&block_i16[..len], &Q15_TAPS[..h_len], out, span);
+            let _ = correlate(&block_i16[..len], &Q15_TAPS[..h_len], out, span);
         }
     }
     let mut conv_f = [0f32; 80];
@@ -178,7 +180,6 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
         &F32_TAPS,
         &mut conv_f[..len + 8],
         Span::Full,
-        rounding,
     );
     black_box(conv);
     black_box(conv_f);
