@@ -16,7 +16,8 @@ use proptest::prelude::*;
 use tapline::design::{
     Band, DesignError, EquirippleBand, Real, Shape, Spec, Window, dc_gain, equiripple,
     equiripple_with, gain_range, group_delay_at, half_power_frequency, kaiser, moving_average,
-    quantize, response_at, savitzky_golay_slope, savitzky_golay_smoother, windowed_sinc,
+    quantize, response_at, savitzky_golay, savitzky_golay_slope, savitzky_golay_smoother,
+    windowed_sinc,
 };
 use tapline::num::FixedPoint;
 use tapline::{Error, Fir, GroupDelay};
@@ -363,6 +364,152 @@ fn savitzky_golay_matches_the_1964_tables_and_exact_least_squares() {
     }
     println!("Savitzky-Golay vs exact rationals (≤ 41 points, order ≤ 6): max |Δ| {worst:e}");
     assert!(worst <= 1e-14);
+}
+
+/// Savitzky & Golay 1964 (Anal. Chem. 36(8)), the second- and third-derivative tables for small
+/// windows, with the corrections of Steinier, Termonia & Deltour 1972 (Anal. Chem. 44(11));
+/// entries and table layout from memory, so each is also checked against exact rational least
+/// squares here (a misremembered entry would show as a disagreement). Data order, weights of
+/// the d-th derivative per sample^d (the tables' convolutes, d! included):
+/// * 2nd derivative, quadratic/cubic, 5 points: (2, −1, −2, −1, 2)/7;
+/// * 2nd derivative, quadratic/cubic, 7 points: (5, 0, −3, −4, −3, 0, 5)/42;
+/// * 3rd derivative, cubic/quartic, 5 points: (−1, 2, 0, −2, 1)/2;
+/// * 3rd derivative, cubic/quartic, 7 points: (−1, 1, 1, 0, −1, −1, 1)/6.
+///
+/// Then every derivative 0..=order of orders 0–6 at windows up to 41 against exact rationals,
+/// at spacings 1, 0.25 (exact in binary) and 10⁻³ (a 1 kHz sensor: third-derivative taps near
+/// 10⁹, relative tolerance). Tolerance 1e-14 relative to the largest tap (f64).
+#[test]
+fn savitzky_golay_any_derivative_matches_the_tables_and_exact_least_squares() {
+    let factorial = |d: usize| (1..=d as i128).product::<i128>();
+    let published: [(usize, usize, usize, &[i128], i128); 4] = [
+        (5, 2, 2, &[2, -1, -2, -1, 2], 7),
+        (7, 2, 2, &[5, 0, -3, -4, -3, 0, 5], 42),
+        (5, 3, 3, &[-1, 2, 0, -2, 1], 2),
+        (7, 3, 3, &[-1, 1, 1, 0, -1, -1, 1], 6),
+    ];
+    for (len, order, d, num, den) in published {
+        let exact = exact_savitzky_golay(len, order, d);
+        for (e, &n) in exact.iter().zip(num) {
+            // The exact model gives the Taylor coefficient; the tables give d! times it.
+            assert_eq!(
+                e.mul(Q::new(factorial(d), 1)),
+                Q::new(n, den),
+                "table vs exact: {len} pts d {d}"
+            );
+        }
+        for order in [order, order + 1] {
+            let mut h = vec![0.0f64; len];
+            savitzky_golay(order, d, 1.0, &mut h).unwrap();
+            for (i, &n) in num.iter().rev().enumerate() {
+                let v = n as f64 / den as f64;
+                assert!(
+                    (h[i] - v).abs() <= 1e-14,
+                    "{len} pts order {order} d {d}: {h:?}"
+                );
+            }
+        }
+    }
+    let mut worst = 0.0f64;
+    let mut rows = 0;
+    for len in [3usize, 5, 9, 15, 21, 31, 41] {
+        for order in 0..=6usize.min(len - 1) {
+            for d in 0..=order {
+                let exact = exact_savitzky_golay(len, order, d);
+                for spacing in [1.0f64, 0.25, 1e-3] {
+                    let scale = factorial(d) as f64 / spacing.powi(d as i32);
+                    let mut h = vec![0.0f64; len];
+                    savitzky_golay(order, d, spacing, &mut h).unwrap();
+                    let want: Vec<f64> = exact.iter().rev().map(|e| e.f64() * scale).collect();
+                    let top = want.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+                    for (a, e) in h.iter().zip(&want) {
+                        worst = worst.max((a - e).abs() / top);
+                    }
+                    rows += 1;
+                }
+            }
+        }
+    }
+    println!(
+        "Savitzky-Golay any derivative vs exact rationals ({rows} rows): max |Δ|/max|h| {worst:e}"
+    );
+    assert!(worst <= 1e-14);
+}
+
+/// What a d-th derivative estimator must do, from the definition: applied to a polynomial of
+/// degree ≤ order sampled every Δ, it returns that polynomial's d-th derivative at the window
+/// centre (the delayed output, m samples back); and the refusals name their reason.
+#[test]
+fn savitzky_golay_reproduces_polynomial_derivatives_and_refuses_bad_arguments() {
+    // An invented cubic p(t) = 0.7 − 1.3 t + 0.4 t² + 0.25 t³ and its derivatives.
+    let c = [0.7, -1.3, 0.4, 0.25];
+    let deriv = |d: usize, t: f64| -> f64 {
+        (d..4)
+            .map(|k| {
+                let falling: f64 = (0..d).map(|j| (k - j) as f64).product();
+                c[k] * falling * t.powi((k - d) as i32)
+            })
+            .sum()
+    };
+    for (len, spacing) in [(7usize, 0.5f64), (11, 1e-3), (21, 2.0)] {
+        let m = len / 2;
+        let t_now = 3.0; // the newest sample's time
+        for order in 3..=5usize {
+            for d in 0..=3usize {
+                let mut h = vec![0.0f64; len];
+                savitzky_golay(order, d, spacing, &mut h).unwrap();
+                let y: f64 = (0..len)
+                    .map(|i| h[i] * deriv(0, t_now - i as f64 * spacing))
+                    .sum();
+                let want = deriv(d, t_now - m as f64 * spacing);
+                let size: f64 = (0..len)
+                    .map(|i| (h[i] * deriv(0, t_now - i as f64 * spacing)).abs())
+                    .sum();
+                assert!(
+                    (y - want).abs() <= 1e-12 * size.max(1.0),
+                    "{len} pts order {order} d {d} spacing {spacing}: {y} vs {want}"
+                );
+            }
+        }
+    }
+    let mut h = [0.0f64; 7];
+    assert!(matches!(
+        savitzky_golay(2, 3, 1.0, &mut h),
+        Err(DesignError::DerivativeOrder {
+            derivative: 3,
+            order: 2,
+            ..
+        })
+    ));
+    assert!(matches!(
+        savitzky_golay_slope(0, &mut h),
+        Err(DesignError::DerivativeOrder { .. })
+    ));
+    for spacing in [0.0, -1.0, f64::NAN, f64::INFINITY] {
+        assert_eq!(
+            savitzky_golay(3, 1, spacing, &mut h),
+            Err(DesignError::InvalidSpacing)
+        );
+    }
+    // In f32, (3·1e-15)^−3 overflows: refused rather than filled with infinities.
+    let mut h32 = [0.0f32; 7];
+    assert_eq!(
+        savitzky_golay(3, 3, 1e-15f32, &mut h32),
+        Err(DesignError::InvalidSpacing)
+    );
+    assert_eq!(savitzky_golay(3, 0, 1e-15f32, &mut h32), Ok(()));
+    assert!(matches!(
+        savitzky_golay(7, 0, 1.0, &mut h),
+        Err(DesignError::PolynomialOrder {
+            order: 7,
+            length: 7,
+            ..
+        })
+    ));
+    assert!(matches!(
+        savitzky_golay(1, 1, 1.0, &mut [0.0f64; 6]),
+        Err(DesignError::OddLengthRequired { found: 6, .. })
+    ));
 }
 
 /// Invariants (CHECKS.md item 12, [computed]): smoother Σc = 1 and Σc² = centre tap (noise

@@ -13,8 +13,8 @@
 #![cfg(feature = "std")]
 
 use tapline::design::{
-    Band, EquirippleBand, Window, equiripple, kaiser, response_at, savitzky_golay_slope,
-    savitzky_golay_smoother, windowed_sinc,
+    Band, EquirippleBand, Window, equiripple, kaiser, response_at, savitzky_golay,
+    savitzky_golay_slope, savitzky_golay_smoother, windowed_sinc,
 };
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -67,6 +67,14 @@ struct SavgolCase {
     len: usize,
     order: usize,
     slope: bool,
+    taps: &'static [f64],
+}
+
+struct SavgolDerivativeCase {
+    len: usize,
+    order: usize,
+    derivative: usize,
+    spacing: f64,
     taps: &'static [f64],
 }
 
@@ -365,6 +373,44 @@ fn savitzky_golay_matches_scipy() {
         worst32 = worst32.max(d);
     }
     println!("Savitzky-Golay vs scipy: max |Δ| f64 {worst64:e}, f32 {worst32:e}");
+}
+
+/// scipy.signal.savgol_coeffs(len, order, deriv=d, delta=spacing, use='conv') for orders 0–3,
+/// every derivative 0..=order, windows 3 to 31, spacings 1, 0.25, 0.3 and 2.5: the
+/// convolution (filter) order, as ours, with scipy's d! and 1/spacing^d. Tolerance relative to
+/// the row's largest tap, since the spacing scales the row by spacing^−d: f64 1e-12 (scipy's
+/// least-squares error for these small orders; the 5e-11 above is for order 6), f32 1e-6 (8
+/// ulps of f32: the recurrence and the scale each round).
+#[test]
+fn savitzky_golay_any_derivative_and_spacing_matches_scipy() {
+    let (mut worst64, mut worst32) = (0.0f64, 0.0f64);
+    let mut derivatives_seen = [0usize; 4];
+    for case in SAVGOL_DERIVATIVE {
+        let mut h = vec![0.0f64; case.len];
+        let mut h32 = vec![0.0f32; case.len];
+        savitzky_golay(case.order, case.derivative, case.spacing, &mut h).unwrap();
+        savitzky_golay(case.order, case.derivative, case.spacing as f32, &mut h32).unwrap();
+        let scale = case.taps.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+        let d = max_abs_diff(&h, case.taps) / scale;
+        let what = format!(
+            "{} pts order {} derivative {} spacing {}",
+            case.len, case.order, case.derivative, case.spacing
+        );
+        assert!(d <= 1e-12, "{what}: f64 off by {d:e} of the largest tap");
+        worst64 = worst64.max(d);
+        let h32: Vec<f64> = h32.iter().map(|&v| f64::from(v)).collect();
+        let d = max_abs_diff(&h32, case.taps) / scale;
+        assert!(d <= 1e-6, "{what}: f32 off by {d:e} of the largest tap");
+        worst32 = worst32.max(d);
+        derivatives_seen[case.derivative] += 1;
+    }
+    assert!(
+        derivatives_seen.iter().all(|&n| n >= 8),
+        "{derivatives_seen:?}"
+    );
+    println!(
+        "Savitzky-Golay any derivative vs scipy: max |Δ|/max|h| f64 {worst64:e}, f32 {worst32:e}"
+    );
 }
 
 /// scipy.signal.freqz at chosen frequencies, for invented Q15 integer taps and for a float

@@ -57,8 +57,7 @@ pub enum DesignError {
     /// length exceeds [`MAX_DESIGN_TAPS`](super::MAX_DESIGN_TAPS).
     InvalidTransition,
     /// A Savitzky–Golay polynomial order is not below the window length, or is above
-    /// [`MAX_POLYNOMIAL_ORDER`](super::MAX_POLYNOMIAL_ORDER), or a derivative was asked of
-    /// a polynomial of order 0.
+    /// [`MAX_POLYNOMIAL_ORDER`](super::MAX_POLYNOMIAL_ORDER).
     #[non_exhaustive]
     PolynomialOrder {
         /// The order that was asked for.
@@ -66,6 +65,18 @@ pub enum DesignError {
         /// The window length.
         length: usize,
     },
+    /// A Savitzky–Golay derivative above the polynomial order: the fitted polynomial's
+    /// higher derivatives are identically 0.
+    #[non_exhaustive]
+    DerivativeOrder {
+        /// The derivative that was asked for.
+        derivative: usize,
+        /// The polynomial order.
+        order: usize,
+    },
+    /// A sample spacing is not positive and finite, or so small or large that the derivative
+    /// scale (m·spacing)^−d leaves the float type.
+    InvalidSpacing,
     /// A band's desired gain is not finite or its weight is not a positive finite number.
     InvalidBandGain,
     /// An iterative design did not settle within its iteration cap (or its arithmetic broke
@@ -136,8 +147,17 @@ impl fmt::Display for DesignError {
             DesignError::PolynomialOrder { order, length } => write!(
                 f,
                 "polynomial order {order} with a {length}-point window: the order must be below \
-                 the window length and at most {}, and at least 1 for a derivative",
+                 the window length and at most {}",
                 super::MAX_POLYNOMIAL_ORDER
+            ),
+            DesignError::DerivativeOrder { derivative, order } => write!(
+                f,
+                "derivative {derivative} of a polynomial of order {order}: the derivative must \
+                 be at most the order"
+            ),
+            DesignError::InvalidSpacing => f.write_str(
+                "the sample spacing must be positive and finite, and not so extreme that the \
+                 derivative scale overflows or vanishes",
             ),
             DesignError::InvalidBandGain => {
                 f.write_str("each band needs a finite desired gain and a positive finite weight")

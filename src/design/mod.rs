@@ -21,7 +21,7 @@
 //! | `spec.rs` | [`Spec`]: a band spec → a Kaiser design that meets it, and measurement against it |
 //! | `equiripple.rs` | Parks–McClellan (`equiripple`, `std` only) |
 //! | `search.rs` | the shortest equiripple design that meets a spec, before and after quantization (`std` only) |
-//! | `savitzky_golay.rs` | [`savitzky_golay_smoother`], [`savitzky_golay_slope`] |
+//! | `savitzky_golay.rs` | [`savitzky_golay`] (any derivative, any spacing), [`savitzky_golay_smoother`], [`savitzky_golay_slope`] |
 //! | `moving_average.rs` | [`moving_average`] (boxcar) |
 //! | `quantize.rs` | [`quantize`]: float taps → Q15/Q31/`fixed` with exact DC gain |
 //! | `response.rs` | [`response_at`], [`group_delay_at`], [`gain_range`], [`half_power_frequency`], [`dc_gain`] |
@@ -61,7 +61,7 @@ pub use real::Real;
 pub use response::{
     Complex, GainRange, dc_gain, gain_range, group_delay_at, half_power_frequency, response_at,
 };
-pub use savitzky_golay::{savitzky_golay_slope, savitzky_golay_smoother};
+pub use savitzky_golay::{savitzky_golay, savitzky_golay_slope, savitzky_golay_smoother};
 #[cfg(feature = "std")]
 pub use search::{EquirippleDesign, FixedEquiripple};
 pub use spec::{FixedDesign, KaiserDesign, Measured, QUANTIZATION_MARGINS_DB, Shape, Spec};

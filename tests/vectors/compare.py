@@ -153,10 +153,13 @@ def tolerances(name, committed):
         if t.kind == "number" and not is_integer(t.text):
             scale[t.group] = max(scale.get(t.group, 0.0), abs(float(t.text)))
     tol = {g: TOLERANCE_ULPS[name] * math.ulp(m) for g, m in scale.items()}
-    # Savitzky-Golay rows: `SavgolCase { len: L, order: P, slope: .., taps: &[ ... ] }`.
+    # Savitzky-Golay rows: `SavgolCase { len: L, order: P, slope: .., taps: &[ ... ] }`, and
+    # `SavgolDerivativeCase { len: L, order: P, derivative: d, spacing: D, taps: &[ ... ] }`:
+    # the same least-squares solve; scipy then multiplies by d!/D**d, one more rounding relative
+    # to the row, which the tolerance follows because it scales with ||c||_2.
     fields, pending = {}, None
     for i, t in enumerate(committed):
-        if t.kind == "word" and t.text == "SavgolCase":
+        if t.kind == "word" and t.text in ("SavgolCase", "SavgolDerivativeCase"):
             fields, pending = {}, True
         elif pending and t.kind == "word" and t.text in ("len", "order"):
             fields[t.text] = int(committed[i + 2].text)

@@ -18,6 +18,8 @@ for this test; every expected value is computed here by scipy/numpy from those s
     scipy.signal.freqz, amplitude taken as the real part after removing the linear phase), and
     the gain |H| at every band edge;
   * Savitzky-Golay: scipy.signal.savgol_coeffs(window, order, deriv, use='conv') (filter order);
+    and, in a section of its own, every derivative 0..=order of orders 0-3 at several window
+    lengths, with unit and invented non-unit sample spacings (delta=...);
   * responses: scipy.signal.freqz of float taps and of invented Q15 integer taps (as value/2^15)
     at chosen frequencies (complex value);
   * rational resampling: scipy.signal.upfirdn(h, x, up=L, down=M) for invented factor pairs,
@@ -111,6 +113,17 @@ REMEZ_CASES = [
 
 SAVGOL_CASES = [(5, 2), (5, 3), (7, 2), (9, 2), (11, 3), (7, 4), (9, 4), (21, 5), (25, 6), (31, 2),
                 (3, 0), (101, 4)]
+
+# Savitzky-Golay of any derivative: (window, order, spacing) for orders 0-3, every derivative
+# 0..=order. The spacings are invented: 1 (per sample), 0.25 (a power of two, so scaling is exact),
+# 0.3 and 2.5 (not powers of two). Spacings that make taps of 1e9 (a 1 kHz sensor's third
+# derivative) are checked in tests/design.rs against exact rationals instead: here a tap that
+# large would carry a tolerance (scaled with the row) wider than compare.py's planted 1e-9 move.
+SAVGOL_DERIVATIVE_CASES = [(w, order, delta)
+                           for w in (5, 7, 11, 25)
+                           for order in range(4)
+                           for delta in (1.0, 0.25)] + [
+    (9, 3, 0.3), (15, 2, 0.3), (31, 3, 2.5), (3, 2, 2.5)]
 
 # Invented Q15 integer taps (a rough smoother with a negative lobe) for freqz on integer taps.
 Q15_TAPS = [-512, 0, 2048, 6144, 9216, 6144, 2048, 0, -511]
@@ -256,6 +269,17 @@ def main():
             c = signal.savgol_coeffs(n, order, deriv=deriv, use="conv")
             w(f"    SavgolCase {{ len: {n}, order: {order}, slope: {str(deriv == 1).lower()}, "
               f"taps: {rs_list(c, indent='        ')} }},")
+    w("];")
+    w("")
+
+    # Savitzky-Golay, any derivative and spacing, filter (convolution) order; the d! factor and
+    # the division by delta**d are scipy's.
+    w("const SAVGOL_DERIVATIVE: &[SavgolDerivativeCase] = &[")
+    for n, order, delta in SAVGOL_DERIVATIVE_CASES:
+        for deriv in range(order + 1):
+            c = signal.savgol_coeffs(n, order, deriv=deriv, delta=delta, use="conv")
+            w(f"    SavgolDerivativeCase {{ len: {n}, order: {order}, derivative: {deriv}, "
+              f"spacing: {fmt_f64(delta)}, taps: {rs_list(c, indent='        ')} }},")
     w("];")
     w("")
 
