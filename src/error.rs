@@ -62,7 +62,9 @@ pub enum Error {
         /// The largest shift allowed.
         max: u32,
     },
-    /// A passband edge outside (0, ½) cycles per sample, or one too narrow for the design.
+    /// A passband edge outside (0, half the sample rate) — for a CIC compensator, the CIC's
+    /// output rate — or one too narrow for the design, or a sample rate that is not positive
+    /// and finite.
     InvalidPassband,
     /// A filter was given no taps; it needs at least one.
     NoTaps,
@@ -132,8 +134,9 @@ impl fmt::Display for Error {
                 "output shift of {shift} bits is larger than the largest allowed, {max}"
             ),
             Error::InvalidPassband => f.write_str(
-                "the passband edge must lie strictly between 0 and 0.5 cycles per sample \
-                 and leave room for the design",
+                "the passband edge must lie strictly between 0 and half the (output) sample \
+                 rate and leave room for the design, and the sample rate must be positive and \
+                 finite",
             ),
             Error::NoTaps => f.write_str("a filter needs at least one tap; none were given"),
             Error::ZeroFactor => {

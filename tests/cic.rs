@@ -210,8 +210,9 @@ fn magnitude_response_matches_the_closed_form() {
                 "N={N} R={R} M={M} f={f}: {measured} vs {want}"
             );
             // The library's own closed form (used by the compensator design) agrees too.
+            // Hz with the input rate beside them (an invented 48 kHz input).
             assert!(
-                (cic_magnitude(N, R, M, f) - want).abs() <= 1e-13,
+                (cic_magnitude(N, R, M, f * 48_000.0, 48_000.0) - want).abs() <= 1e-13,
                 "cic_magnitude at {f}"
             );
         }
@@ -283,8 +284,9 @@ fn compensator_flattens_the_passband_droop() {
     // and its residual are measured here, on a grid 400 points dense, independently of the
     // design's own 256-point grid.
     let before = passband_deviation_db(3, 10, 1, &[1.0], 0.2);
-    let taps3 = cic_compensator::<3>(3, 10, 1, 0.2).unwrap();
-    let taps5 = cic_compensator::<5>(3, 10, 1, 0.2).unwrap();
+    // 0.2 of the output rate: 200 Hz for an invented 10 kHz input (1 kHz out).
+    let taps3 = cic_compensator::<3>(3, 10, 1, 200.0, 10_000.0).unwrap();
+    let taps5 = cic_compensator::<5>(3, 10, 1, 200.0, 10_000.0).unwrap();
     let after3 = passband_deviation_db(3, 10, 1, &taps3, 0.2);
     let after5 = passband_deviation_db(3, 10, 1, &taps5, 0.2);
     println!(
@@ -298,15 +300,22 @@ fn compensator_flattens_the_passband_droop() {
     assert!((taps5.iter().sum::<f64>() - 1.0).abs() < 0.01);
     // A wider passband and more stages: still well under the uncompensated droop.
     let before = passband_deviation_db(5, 16, 1, &[1.0], 0.3);
-    let taps = cic_compensator::<7>(5, 16, 1, 0.3).unwrap();
+    let taps = cic_compensator::<7>(5, 16, 1, 300.0, 16_000.0).unwrap();
     let after = passband_deviation_db(5, 16, 1, &taps, 0.3);
     println!("droop N=5 R=16 M=1 to 0.3·fs_out: {before:.3} dB; 7 taps {after:.4} dB");
     assert!(after < before / 20.0, "{before} {after}");
     for bad in [0.0, 0.5, -0.1, f64::NAN] {
         assert_eq!(
-            cic_compensator::<5>(3, 10, 1, bad),
+            cic_compensator::<5>(3, 10, 1, bad * 1000.0, 10_000.0),
             Err(Error::InvalidPassband)
         );
+    }
+    for bad_rate in [0.0, -10_000.0, f64::INFINITY, f64::NAN] {
+        assert_eq!(
+            cic_compensator::<5>(3, 10, 1, 200.0, bad_rate),
+            Err(Error::InvalidPassband)
+        );
+        assert!(cic_magnitude(3, 10, 1, 200.0, bad_rate).is_nan());
     }
 }
 

@@ -547,6 +547,162 @@ fn savitzky_golay_invariants() {
 }
 
 // ---------------------------------------------------------------------------------------------
+// One frequency convention: Hz with the sample rate beside them
+// ---------------------------------------------------------------------------------------------
+
+/// Every public function of `design` and the CIC helpers of `filter` takes (or returns)
+/// frequencies in Hz with the sample rate beside them, so only the ratio may matter: the same
+/// filter comes out at 1 kHz and at 48 kHz (and at 370 Hz, a factor that is not a power of two
+/// either way) when every frequency is scaled with the rate. A fact of the definition (a
+/// sampled system sees f/fs only). Tolerances: 1e-13 relative for closed forms (the ratio
+/// f/fs is rounded once, differently at each rate); 1e-9 for the iterative designs (an
+/// exchange or search that settles on the same extremal set within its own stopping rule).
+#[test]
+fn every_frequency_argument_scales_with_the_sample_rate() {
+    use tapline::filter::{cic_compensator, cic_magnitude};
+    let close = |a: f64, b: f64, tol: f64, what: &str| {
+        assert!(
+            (a - b).abs() <= tol * a.abs().max(b.abs()).max(1e-300),
+            "{what}: {a} vs {b}"
+        )
+    };
+    let same_taps = |a: &[f64], b: &[f64], tol: f64, what: &str| {
+        assert_eq!(a.len(), b.len(), "{what}: lengths");
+        let top = a.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        for (x, y) in a.iter().zip(b) {
+            assert!((x - y).abs() <= tol * top, "{what}: {a:?} vs {b:?}");
+        }
+    };
+    let base = 1000.0f64;
+    for k in [48.0f64, 0.37] {
+        let fs = base * k;
+        let what = |name: &str| format!("{name} at {fs} Hz");
+        // Window-method bands.
+        for band in [
+            |s: f64| Band::Lowpass {
+                cutoff_hz: 123.4 * s,
+            },
+            |s: f64| Band::Bandpass {
+                low_hz: 80.0 * s,
+                high_hz: 210.0 * s,
+            },
+        ] {
+            let (mut a, mut b) = (vec![0.0f64; 31], vec![0.0f64; 31]);
+            windowed_sinc(band(1.0), base, Window::Hamming, &mut a).unwrap();
+            windowed_sinc(band(k), fs, Window::Hamming, &mut b).unwrap();
+            same_taps(&a, &b, 1e-13, &what("windowed_sinc"));
+        }
+        // Kaiser's estimates.
+        assert_eq!(
+            kaiser::length_for_transition(65.0, 24.0, base).unwrap(),
+            kaiser::length_for_transition(65.0, 24.0 * k, fs).unwrap(),
+            "{}",
+            what("length_for_transition")
+        );
+        close(
+            kaiser::attenuation_for_length(211, 18.75, base).unwrap(),
+            kaiser::attenuation_for_length(211, 18.75 * k, fs).unwrap(),
+            1e-13,
+            &what("attenuation_for_length"),
+        );
+        // A spec → measured Kaiser design.
+        let spec = |s: f64| Spec {
+            sample_rate_hz: base * s,
+            shape: Shape::Lowpass {
+                pass_hz: 40.0 * s,
+                stop_hz: 90.0 * s,
+            },
+            passband_ripple_db: 0.1,
+            stopband_attenuation_db: 60.0,
+        };
+        let (a, b) = (
+            spec(1.0).kaiser::<256>().unwrap(),
+            spec(k).kaiser::<256>().unwrap(),
+        );
+        same_taps(&a.taps, &b.taps, 1e-12, &what("Spec::kaiser"));
+        close(
+            a.measured.stopband_attenuation_db,
+            b.measured.stopband_attenuation_db,
+            1e-9,
+            &what("Spec::measure"),
+        );
+        // Parks–McClellan, given bands and from a spec.
+        let bands = |s: f64| {
+            [
+                EquirippleBand {
+                    low_hz: 0.0,
+                    high_hz: 150.0 * s,
+                    gain: 1.0,
+                    weight: 1.0,
+                },
+                EquirippleBand {
+                    low_hz: 250.0 * s,
+                    high_hz: 500.0 * s,
+                    gain: 0.0,
+                    weight: 3.0,
+                },
+            ]
+        };
+        let (a, b) = (
+            equiripple(24, &bands(1.0), base).unwrap(),
+            equiripple(24, &bands(k), fs).unwrap(),
+        );
+        same_taps(&a.taps, &b.taps, 1e-9, &what("equiripple"));
+        let (a, b) = (
+            spec(1.0).shortest_equiripple().unwrap(),
+            spec(k).shortest_equiripple().unwrap(),
+        );
+        same_taps(
+            &a.design.taps,
+            &b.design.taps,
+            1e-9,
+            &what("shortest_equiripple"),
+        );
+        // Responses of one tap set.
+        let h = &a.design.taps;
+        for f in [0.0, 12.5, 77.0, 250.0, 499.0] {
+            let (ra, rb) = (response_at(h, f, base), response_at(h, f * k, fs));
+            close(ra.magnitude(), rb.magnitude(), 1e-12, &what("response_at"));
+            if let (Some(da), Some(db)) = (group_delay_at(h, f, base), group_delay_at(h, f * k, fs))
+            {
+                close(da, db, 1e-9, &what("group_delay_at"));
+            }
+        }
+        let (ga, gb) = (
+            gain_range(h, 90.0, 500.0, base).unwrap(),
+            gain_range(h, 90.0 * k, 500.0 * k, fs).unwrap(),
+        );
+        close(ga.max, gb.max, 1e-9, &what("gain_range max"));
+        close(
+            ga.max_at_hz * k,
+            gb.max_at_hz,
+            1e-9,
+            &what("gain_range max_at_hz"),
+        );
+        close(
+            half_power_frequency(h, base).unwrap() * k,
+            half_power_frequency(h, fs).unwrap(),
+            1e-9,
+            &what("half_power_frequency"),
+        );
+        // The CIC helpers take the CIC's input rate.
+        for f in [0.0, 37.0, 100.0, 333.0] {
+            close(
+                cic_magnitude(3, 10, 1, f, base),
+                cic_magnitude(3, 10, 1, f * k, fs),
+                1e-13,
+                &what("cic_magnitude"),
+            );
+        }
+        let (a, b) = (
+            cic_compensator::<7>(3, 10, 1, 20.0, base).unwrap(),
+            cic_compensator::<7>(3, 10, 1, 20.0 * k, fs).unwrap(),
+        );
+        same_taps(&a, &b, 1e-10, &what("cic_compensator"));
+    }
+}
+
+// ---------------------------------------------------------------------------------------------
 // Moving average
 // ---------------------------------------------------------------------------------------------
 

@@ -26,6 +26,17 @@
 //! | `quantize.rs` | [`quantize`]: float taps → Q15/Q31/`fixed` with exact DC gain |
 //! | `response.rs` | [`response_at`], [`group_delay_at`], [`gain_range`], [`half_power_frequency`], [`dc_gain`] |
 //!
+//! **Frequencies, one convention:** every frequency a function here takes or returns is in Hz,
+//! with the sample rate in Hz beside it (`sample_rate_hz`, the field of [`Spec`]): the numbers a
+//! firmware configuration holds. Band edges, transition widths, the frequency of a response or a
+//! group delay, the half-power point and the frequencies a [`GainRange`] reports all follow it, and
+//! so do the CIC helpers of the filter module ([`cic_magnitude`](crate::filter::cic_magnitude),
+//! [`cic_compensator`](crate::filter::cic_compensator)), whose one rate is the CIC's input rate.
+//! Only the ratio to the sample rate matters: scaling every frequency and the rate together
+//! gives the same filter to rounding (`tests/design.rs`,
+//! `every_frequency_argument_scales_with_the_sample_rate`). Savitzky–Golay takes the sample
+//! spacing (1/rate, in seconds) instead, the unit its derivatives are per.
+//!
 //! **Caution:** a designed filter is only as right as its spec. Measure the quantized taps
 //! ([`Spec::measure`]) before they go into firmware; the design functions do not know your
 //! system.

@@ -383,23 +383,43 @@ fn cos_two_pi(x: f64) -> f64 {
 }
 
 /// The magnitude response of a CIC with `stages` N, `rate` R and differential `delay` M,
-/// normalised by its DC gain: |sin(π·R·M·f) / (R·M·sin(π·f))|^N at `f` cycles per *input*
-/// sample (Hogenauer 1981). 1 at f = 0 (and at every integer f, where the ratio's limit is
-/// taken).
+/// normalised by its DC gain, at `frequency_hz` for a CIC whose *input* runs at
+/// `input_rate_hz`: |sin(π·R·M·f) / (R·M·sin(π·f))|^N with f = `frequency_hz`/`input_rate_hz`
+/// (Hogenauer 1981). 1 at 0 Hz (and at every multiple of the input rate, where the ratio's
+/// limit is taken). Frequencies in Hz with the sample rate beside them, as everywhere in
+/// [`design`](crate::design); the CIC's one rate is its input rate (the ADC's), the output runs
+/// at `input_rate_hz`/R.
 ///
 /// **Accuracy:** the sine is a 12-term Taylor series after exact range reduction, within
-/// 1e-15 of the true sine; the result is within about 1e-13 relative for moderate N.
+/// 1e-15 of the true sine; the result is within about 1e-13 relative for moderate N. A
+/// non-positive or non-finite `input_rate_hz` gives NaN.
 ///
 /// ```
 /// use tapline::filter::cic_magnitude;
-/// // Nulls at multiples of 1/(R·M) = 1/8; at the output Nyquist edge, 1/16:
-/// assert!(cic_magnitude(3, 8, 1, 0.125) < 1e-15);
-/// let edge = cic_magnitude(3, 8, 1, 1.0 / 16.0);
+/// // 8 kHz into a CIC with R = 8: nulls at multiples of 8000/(R·M) = 1 kHz; at the output
+/// // Nyquist frequency, 500 Hz:
+/// assert!(cic_magnitude(3, 8, 1, 1000.0, 8000.0) < 1e-15);
+/// let edge = cic_magnitude(3, 8, 1, 500.0, 8000.0);
 /// assert!((edge - 0.263041).abs() < 1e-6); // |sin(π/2)/(8 sin(π/16))|^3
-/// assert_eq!(cic_magnitude(3, 8, 1, 0.0), 1.0);
+/// assert_eq!(cic_magnitude(3, 8, 1, 0.0, 8000.0), 1.0);
+/// assert!(cic_magnitude(3, 8, 1, 500.0, 0.0).is_nan()); // no sample rate
 /// ```
 #[must_use]
-pub fn cic_magnitude(stages: usize, rate: usize, delay: usize, f: f64) -> f64 {
+pub fn cic_magnitude(
+    stages: usize,
+    rate: usize,
+    delay: usize,
+    frequency_hz: f64,
+    input_rate_hz: f64,
+) -> f64 {
+    if !(input_rate_hz.is_finite() && input_rate_hz > 0.0) {
+        return f64::NAN;
+    }
+    magnitude_at(stages, rate, delay, frequency_hz / input_rate_hz)
+}
+
+/// [`cic_magnitude`] at `f` cycles per input sample.
+fn magnitude_at(stages: usize, rate: usize, delay: usize, f: f64) -> f64 {
     let rm = (rate * delay) as f64;
     let den = rm * sin_pi(f);
     let ratio = if den == 0.0 {
@@ -418,12 +438,14 @@ pub fn cic_magnitude(stages: usize, rate: usize, delay: usize, f: f64) -> f64 {
 const MAX_HALF: usize = 16;
 
 /// A K-tap symmetric FIR (K odd, at most 31), run at the CIC's *output* rate, whose response
-/// approximates the inverse of the CIC's passband droop from 0 to `passband` cycles per output
-/// sample (0 < passband < ½).
+/// approximates the inverse of the CIC's passband droop from 0 to `passband_hz`, for a CIC
+/// whose input runs at `input_rate_hz` (as [`cic_magnitude`]: Hz and the input rate; the
+/// passband must lie inside (0, `input_rate_hz`/(2R)), below the output Nyquist frequency).
 ///
-/// **Method:** weighted least squares on 256 equally spaced frequencies f in [0, passband]: the
+/// **Method:** weighted least squares on 256 equally spaced frequencies f in [0, passband]
+/// (f in cycles per output sample, passband = `passband_hz`·R/`input_rate_hz`): the
 /// taps c minimise Σ_f (C(f)·D(f) − 1)², where D is the CIC's normalised magnitude at the output
-/// rate (D(f) = [`cic_magnitude`] at f/R) and C(f) = c₀ + 2·Σ_p c_p·cos(2πpf) is the
+/// rate (D(f) = [`cic_magnitude`] at f/R of the input rate) and C(f) = c₀ + 2·Σ_p c_p·cos(2πpf) is the
 /// compensator's zero-phase response; i.e. the product's deviation from flat is minimised, not
 /// the compensator's distance from 1/D. The normal equations are solved by Gaussian
 /// elimination (they are symmetric positive definite). Nothing constrains the response above
@@ -436,22 +458,26 @@ const MAX_HALF: usize = 16;
 /// 0.008 dB with 5; N = 5, R = 16, passband 0.3 — 6.61 dB falls to 0.055 dB with 7 taps.
 ///
 /// # Errors
-/// [`Error::InvalidPassband`] when `passband` is not inside (0, ½), or the equations are too
+/// [`Error::InvalidPassband`] when `input_rate_hz` is not positive and finite, or
+/// `passband_hz` is not inside (0, `input_rate_hz`/(2R)), or the equations are too
 /// ill-conditioned to solve (a passband too narrow for K taps).
 ///
 /// ```
 /// use tapline::filter::{cic_compensator, cic_magnitude};
-/// let taps = cic_compensator::<5>(3, 10, 1, 0.2)?;
+/// // 10 kHz into a CIC with R = 10 (1 kHz out), passband to 200 Hz.
+/// let taps = cic_compensator::<5>(3, 10, 1, 200.0, 10_000.0)?;
 /// assert!((taps.iter().sum::<f64>() - 1.0).abs() < 0.01); // about unity DC gain
 /// assert_eq!(taps[0], taps[4]); // symmetric: linear phase
-/// assert!(cic_compensator::<5>(3, 10, 1, 0.5).is_err());
+/// // Edge case: a passband at the output Nyquist frequency (500 Hz) is refused.
+/// assert!(cic_compensator::<5>(3, 10, 1, 500.0, 10_000.0).is_err());
 /// # Ok::<(), tapline::Error>(())
 /// ```
 pub fn cic_compensator<const K: usize>(
     stages: usize,
     rate: usize,
     delay: usize,
-    passband: f64,
+    passband_hz: f64,
+    input_rate_hz: f64,
 ) -> Result<[f64; K], Error> {
     const {
         assert!(
@@ -459,6 +485,11 @@ pub fn cic_compensator<const K: usize>(
             "K must be odd and at most 31"
         )
     };
+    if !(input_rate_hz.is_finite() && input_rate_hz > 0.0) {
+        return Err(Error::InvalidPassband);
+    }
+    // Cycles per output sample.
+    let passband = passband_hz * rate.max(1) as f64 / input_rate_hz;
     if !(passband > 0.0 && passband < 0.5) {
         return Err(Error::InvalidPassband);
     }
@@ -468,7 +499,7 @@ pub fn cic_compensator<const K: usize>(
     let mut system = [[0.0f64; MAX_HALF + 1]; MAX_HALF];
     for g in 0..GRID {
         let f = passband * g as f64 / (GRID - 1) as f64;
-        let droop = cic_magnitude(stages, rate, delay, f / rate.max(1) as f64);
+        let droop = magnitude_at(stages, rate, delay, f / rate.max(1) as f64);
         let mut row = [0.0f64; MAX_HALF];
         for (p, a) in row.iter_mut().enumerate().take(n) {
             let basis = if p == 0 {
