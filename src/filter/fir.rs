@@ -5,7 +5,7 @@ use super::shared::OutputStep;
 use super::taps::{TapTable, span_for};
 use crate::headroom::{AccTrace, CheckedTaps, ProvenTaps, proof_holds};
 use crate::num::{
-    Acc32, Acc32Checked, DefaultAcc, FixedPoint, MulAcc, Rounding, RuntimeChecked, Sample,
+    Acc32, Acc32Checked, Acc128, DefaultAcc, FixedPoint, MulAcc, Rounding, RuntimeChecked, Sample,
 };
 use crate::{Error, Ring};
 use core::marker::PhantomData;
@@ -183,6 +183,67 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W: RuntimeChecked> FirUpTo<
     /// ```
     pub fn with_taps(taps: &'a [T]) -> Result<Self, Error> {
         Self::checked(taps)
+    }
+}
+
+impl<'a, S, const N: usize, T: Sample> Fir<'a, S, N, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The filter of [`new`](Fir::new) with the 128-bit accumulator
+    /// [`Acc128`]: one line for what
+    /// `Fir::<S, N, T, Acc128>::with_accumulator(taps)` spells out. For 32-bit samples
+    /// (`i32`/Q31, `FixedI32<F>`), whose `i64` default refuses tap sets with Σ|h| near 2 or more.
+    ///
+    /// * **Accumulator:** `i128`, exact for any tap set that fits in memory.
+    /// * **Rounding / saturation:** the one output step of every filter ([`Rounding::HalfUp`]
+    ///   unless [`with_rounding`](Fir::with_rounding) says otherwise), clamped and counted.
+    /// * **Cost:** about twice the additions of `i64` on a 32-bit core.
+    ///
+    /// # Errors
+    /// None in practice: [`Error::AccumulatorOverflow`] only for a table too long to exist.
+    ///
+    /// ```
+    /// use tapline::Fir;
+    /// static LOUD: [i32; 3] = [i32::MIN; 3]; // Σ|h| = 3 in Q31: refused by Fir::new
+    /// assert!(Fir::<i32, 3>::new(&LOUD).is_err());
+    /// let mut fir = Fir::new_wide(&LOUD)?;
+    /// assert_eq!(fir.push(1 << 28), -(1 << 28)); // (−1)·2^-3, exact
+    /// // Full scale: 1 − 1/8 is exact; 2 − 1/8, summed exactly in 128 bits, clamps (counted).
+    /// assert_eq!(fir.push(i32::MIN), 7 << 28);
+    /// assert_eq!(fir.push(i32::MIN), i32::MAX);
+    /// assert_eq!(fir.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<Fir<'a, S, N, T, Acc128>, Error> {
+        Fir::with_accumulator(taps)
+    }
+}
+
+impl<'a, S, const N: usize, T: Sample> FirUpTo<'a, S, N, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The run-time tap set of [`with_taps`](FirUpTo::with_taps) (1 to `N` taps) with the
+    /// 128-bit accumulator [`Acc128`]: one line for
+    /// `FirUpTo::<S, N, T, Acc128>::with_taps(taps)`. Numeric contract as
+    /// [`new_wide`](Fir::new_wide).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`].
+    ///
+    /// ```
+    /// use tapline::{Error, filter::FirUpTo};
+    /// let stored = [i32::MIN; 8]; // a table read at run time, Σ|h| = 5 in the 5 taps used
+    /// let mut fir = FirUpTo::<i32, 8>::with_taps_wide(&stored[..5])?;
+    /// assert_eq!(fir.push(-1 << 24), 1 << 24);
+    /// assert_eq!(fir.push(i32::MIN), i32::MAX); // +1 + 2^-7 clamps to 1 − 2^-31
+    /// assert_eq!(FirUpTo::<i32, 4>::with_taps_wide(&stored[..5]).err(),
+    ///     Some(Error::TooManyTaps { capacity: 4, found: 5 }));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_taps_wide(taps: &'a [T]) -> Result<FirUpTo<'a, S, N, T, Acc128>, Error> {
+        FirUpTo::with_taps(taps)
     }
 }
 

@@ -5,7 +5,7 @@ use super::GroupDelay;
 use super::shared::{OutputStep, history_dot_folded, map_block, output_controls};
 use crate::headroom::Symmetry;
 use crate::kernel::{Fold, FoldMulAcc};
-use crate::num::{DefaultAcc, RuntimeChecked, Sample};
+use crate::num::{Acc128, DefaultAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -78,6 +78,37 @@ impl<'a, S: FoldMulAcc<T>, const N: usize, T: Sample> LinearPhaseFir<'a, S, N, T
     /// ```
     pub fn new(taps: &'a [T; N]) -> Result<Self, Error> {
         Self::with_accumulator(taps)
+    }
+}
+
+impl<'a, S, const N: usize, T: Sample> LinearPhaseFir<'a, S, N, T>
+where
+    S: FoldMulAcc<T> + FoldMulAcc<T, Acc128>,
+{
+    /// The folded filter of [`new`](LinearPhaseFir::new) with the 128-bit accumulator
+    /// [`Acc128`]: one line for `LinearPhaseFir::<S, N, T, Acc128>::with_accumulator(taps)`.
+    /// For 32-bit samples; exact `i128` sums (the pre-added pair included), outputs bit-identical
+    /// to [`Fir::new_wide`](crate::Fir::new_wide) of the same taps, the one output step
+    /// (half up unless [`with_rounding`](LinearPhaseFir::with_rounding) says otherwise),
+    /// clamped and counted saturation.
+    ///
+    /// # Errors
+    /// [`Error::NotLinearPhase`] as in [`new`](LinearPhaseFir::new).
+    ///
+    /// ```
+    /// use tapline::{Error, LinearPhaseFir};
+    /// static LOUD: [i32; 3] = [i32::MIN, i32::MIN, i32::MIN]; // Σ|h| = 3, symmetric
+    /// let mut f = LinearPhaseFir::new_wide(&LOUD)?;
+    /// assert_eq!(f.multiplies(), 2);
+    /// assert_eq!(f.push(-(1 << 28)), 1 << 28);
+    /// assert_eq!(f.push(i32::MIN), i32::MAX); // 1 + 1/8 clamps, counted
+    /// assert_eq!(f.saturations(), 1);
+    /// static SKEWED: [i32; 2] = [1, 2];
+    /// assert_eq!(LinearPhaseFir::<i32, 2>::new_wide(&SKEWED).err(), Some(Error::NotLinearPhase));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<LinearPhaseFir<'a, S, N, T, Acc128>, Error> {
+        LinearPhaseFir::with_accumulator(taps)
     }
 }
 

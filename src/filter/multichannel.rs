@@ -5,7 +5,7 @@ use super::GroupDelay;
 use super::shared::{OutputStep, history_dot, output_controls};
 use super::taps::TapTable;
 use crate::headroom::CheckedTaps;
-use crate::num::{Acc32Checked, DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::num::{Acc32Checked, Acc128, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -124,6 +124,61 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const C: usize, T: Sample, W: RuntimeC
     /// ```
     pub fn with_taps(taps: &'a [T]) -> Result<Self, Error> {
         Self::checked(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const C: usize, T: Sample> MultiChannelFir<'a, S, N, C, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The C-channel filter of [`new`](MultiChannelFir::new) with the 128-bit accumulator
+    /// [`Acc128`]: one line for `MultiChannelFir::<S, N, C, T, Acc128>::with_accumulator(taps)`.
+    /// For 32-bit samples; exact `i128` sums for any taps, the one output step
+    /// (half up unless [`with_rounding`](MultiChannelFir::with_rounding) says otherwise),
+    /// clamped and counted saturation, as [`Fir::new_wide`](crate::Fir::new_wide).
+    ///
+    /// # Errors
+    /// None in practice: [`Error::AccumulatorOverflow`] only for a table too long to exist.
+    ///
+    /// ```
+    /// use tapline::MultiChannelFir;
+    /// static LOUD: [i32; 2] = [i32::MIN; 2]; // Σ|h| = 2: beyond the i64 default
+    /// let mut f = MultiChannelFir::<i32, 2, 2>::new_wide(&LOUD)?;
+    /// assert_eq!(f.push([-(1 << 20), 1 << 20]), [1 << 20, -(1 << 20)]);
+    /// // Full scale on channel 0: 1 + 2^-11 clamps (counted); channel 1 is independent.
+    /// assert_eq!(f.push([i32::MIN, 0]), [i32::MAX, -(1 << 20)]);
+    /// assert_eq!(f.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<MultiChannelFir<'a, S, N, C, T, Acc128>, Error> {
+        MultiChannelFir::with_accumulator(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const C: usize, T: Sample> MultiChannelFirUpTo<'a, S, N, C, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The run-time tap set of [`with_taps`](MultiChannelFirUpTo::with_taps) with the 128-bit
+    /// accumulator [`Acc128`]: one line for
+    /// `MultiChannelFirUpTo::<S, N, C, T, Acc128>::with_taps(taps)`; numeric contract as
+    /// [`new_wide`](MultiChannelFir::new_wide).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`].
+    ///
+    /// ```
+    /// use tapline::{Error, filter::MultiChannelFirUpTo};
+    /// let stored = [i32::MIN; 4];
+    /// let mut f = MultiChannelFirUpTo::<i32, 4, 2>::with_taps_wide(&stored[..3])?;
+    /// assert_eq!(f.push([i32::MIN, -(1 << 24)]), [i32::MAX, 1 << 24]);
+    /// assert_eq!(MultiChannelFirUpTo::<i32, 4, 2>::with_taps_wide(&[]).err(), Some(Error::NoTaps));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_taps_wide(
+        taps: &'a [T],
+    ) -> Result<MultiChannelFirUpTo<'a, S, N, C, T, Acc128>, Error> {
+        MultiChannelFirUpTo::with_taps(taps)
     }
 }
 
