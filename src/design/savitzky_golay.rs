@@ -104,7 +104,7 @@ pub fn savitzky_golay<R: Real>(
     let step = R::ONE / (m * spacing);
     let mut scale = R::ONE;
     for _ in 0..derivative {
-        scale = scale * step;
+        scale *= step;
     }
     if !(scale.is_finite() && scale > R::ZERO) {
         return Err(DesignError::InvalidSpacing);

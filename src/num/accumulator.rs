@@ -13,13 +13,15 @@ pub struct DefaultAcc;
 /// A 128-bit accumulator for 32-bit fixed-point samples: exact for any tap set that fits in
 /// memory, so Q31 tables with Σ|h| ≥ 2 (high-gain or interpolating filters) run without any
 /// pre-shift and without extra rounding error. Costs about twice the additions of `i64` on a
-/// 32-bit core.
+/// 32-bit core. One line reaches it: `Fir::new_wide`, `FirUpTo::with_taps_wide`,
+/// `MultiChannelFir::new_wide`, `MultiChannelFirUpTo::with_taps_wide`,
+/// `LinearPhaseFir::new_wide`; the other structures name it as their `W` parameter.
 ///
 /// ```
 /// use tapline::{Fir, num::Acc128};
 /// static LOUD: [i32; 3] = [i32::MIN; 3]; // Σ|h| = 3: too much for an i64 accumulator
 /// assert!(Fir::<i32, 3>::new(&LOUD).is_err());
-/// let mut fir = Fir::<i32, 3, i32, Acc128>::with_accumulator(&LOUD)?;
+/// let mut fir: Fir<i32, 3, i32, Acc128> = Fir::new_wide(&LOUD)?;
 /// assert_eq!(fir.push(-1 << 20), 1 << 20); // (-1.0)·(-2^-11) exactly
 /// # Ok::<(), tapline::Error>(())
 /// ```

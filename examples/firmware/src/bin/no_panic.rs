@@ -145,6 +145,25 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
     if let Ok(mut fir) = Fir::<i32, 3, i32, Acc128>::with_accumulator(black_box(&LOUD_Q31)) {
         black_box(fir.push(block_i32[3]));
     }
+    // The one-line wide constructors, on an opaque tap count for the run-time ones.
+    if let Ok(mut fir) = Fir::new_wide(black_box(&LOUD_Q31)) {
+        fir.process_in_place(&mut block_i32[..len]);
+    }
+    let loud_used = black_box(2usize).min(LOUD_Q31.len());
+    if let Ok(mut fir) = FirUpTo::<i32, 8>::with_taps_wide(&LOUD_Q31[..loud_used]) {
+        black_box(fir.push(block_i32[4]));
+        fir.process_in_place(&mut block_i32[..len]);
+    }
+    if let Ok(mut f) = MultiChannelFir::<i32, 3, 2>::new_wide(black_box(&LOUD_Q31)) {
+        black_box(f.push([block_i32[5], block_i32[6]]));
+        let _ = f.process_in_place(&mut block_i32[..len & !1]);
+    }
+    if let Ok(mut f) = MultiChannelFirUpTo::<i32, 8, 2>::with_taps_wide(&LOUD_Q31[..loud_used]) {
+        let _ = f.process_in_place(&mut block_i32[..len & !1]);
+    }
+    if let Ok(mut f) = LinearPhaseFir::<i32, 3>::new_wide(black_box(&LOUD_Q31)) {
+        f.process_in_place(&mut block_i32[..len]);
+    }
     if let Ok(mut fir) = Fir::<f32, 9>::new(black_box(&F32_TAPS)) {
         fir.process_in_place(&mut block_f32[..len]);
     }
@@ -168,8 +187,10 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
     for span in [Span::Full, Span::Same, Span::Valid] {
         let (out_len, _) = span.layout(len, h_len);
         if let Some(out) = conv.get_mut(..out_len) {
-            let _ = convolve_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
-            let _ = correlate_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ =
+                convolve_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
+            let _ =
+                correlate_with_rounding(&block_i16[..len], &Q15_TAPS[..h_len], out, span, rounding);
             let _ = convolve(&block_i16[..len], &Q15_TAPS[..h_len], out, span);
             let _ = correlate(&block_i16[..len], &Q15_TAPS[..h_len], out, span);
         }
