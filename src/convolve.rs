@@ -76,9 +76,9 @@ impl Span {
     }
 }
 
-/// Checks the operands and the output length against `layout`; returns the index of the first
-/// full output.
-fn check<S, T>(
+/// Checks the operands, the output length against `layout`, and that `kernel` cannot overflow
+/// the accumulator; returns the index of the first full output.
+fn check<S: MulAcc<T>, T: Sample>(
     signal: &[S],
     kernel: &[T],
     out: &[S],
@@ -95,7 +95,26 @@ fn check<S, T>(
             found: out.len(),
         });
     }
+    if !S::accumulator_fits(kernel) {
+        return Err(Error::AccumulatorOverflow);
+    }
     Ok(first)
+}
+
+/// Writes `out[i]` = the output step of `sum(first + i)` and returns how many saturated.
+fn finish_each<S: MulAcc<T>, T: Sample>(
+    out: &mut [S],
+    first: usize,
+    rounding: Rounding,
+    sum: impl Fn(usize) -> S::Acc,
+) -> usize {
+    let mut saturated = 0;
+    for (n, y) in (first..).zip(out.iter_mut()) {
+        let (v, sat) = S::finish(sum(n), rounding);
+        *y = v;
+        saturated += usize::from(sat);
+    }
+    saturated
 }
 
 /// Writes the requested span of `full[n] = Σ_k kernel[k] · signal[n − k]` into `out` and
@@ -133,7 +152,7 @@ pub fn convolve<S: MulAcc<T>, T: Sample>(
     out: &mut [S],
     span: Span,
 ) -> Result<usize, Error> {
-    convolve_rounded(signal, kernel, out, span, Rounding::HalfUp)
+    finite(signal, kernel, out, span, Rounding::HalfUp, Op::Convolve)
 }
 
 /// [`convolve`] with the output step's rounding mode chosen: fixed point only.
@@ -167,35 +186,7 @@ pub fn convolve_with_rounding<S: MulAcc<T> + FixedPoint, T: Sample>(
     span: Span,
     rounding: Rounding,
 ) -> Result<usize, Error> {
-    convolve_rounded(signal, kernel, out, span, rounding)
-}
-
-/// The convolution with a rounding mode; floats ignore it (their `finish` has no rounding).
-fn convolve_rounded<S: MulAcc<T>, T: Sample>(
-    signal: &[S],
-    kernel: &[T],
-    out: &mut [S],
-    span: Span,
-    rounding: Rounding,
-) -> Result<usize, Error> {
-    let first = check(signal, kernel, out, Span::layout, span)?;
-    if !S::accumulator_fits(kernel) {
-        return Err(Error::AccumulatorOverflow);
-    }
-    let (l, k) = (signal.len(), kernel.len());
-    let mut saturated = 0;
-    for (n, y) in (first..).zip(out.iter_mut()) {
-        // Kernel indices that meet a signal sample: max(0, n−L+1) ..= min(n, K−1).
-        let k_lo = (n + 1).saturating_sub(l);
-        let k_hi = n.min(k - 1);
-        let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
-        let xs = signal.get(n - k_hi..=n - k_lo).unwrap_or(&[]);
-        // The dispatched sum (`kernel::Kernels`): the target's kernel where there is one.
-        let (v, sat) = S::finish(S::dot_reversed(S::ACC_ZERO, taps, xs), rounding);
-        *y = v;
-        saturated += usize::from(sat);
-    }
-    Ok(saturated)
+    finite(signal, kernel, out, span, rounding, Op::Convolve)
 }
 
 /// Writes the requested span of the cross-correlation
@@ -226,7 +217,7 @@ pub fn correlate<S: MulAcc<T>, T: Sample>(
     out: &mut [S],
     span: Span,
 ) -> Result<usize, Error> {
-    correlate_rounded(signal, kernel, out, span, Rounding::HalfUp)
+    finite(signal, kernel, out, span, Rounding::HalfUp, Op::Correlate)
 }
 
 /// [`correlate`] with the output step's rounding mode chosen: fixed point only (as
@@ -255,33 +246,50 @@ pub fn correlate_with_rounding<S: MulAcc<T> + FixedPoint, T: Sample>(
     span: Span,
     rounding: Rounding,
 ) -> Result<usize, Error> {
-    correlate_rounded(signal, kernel, out, span, rounding)
+    finite(signal, kernel, out, span, rounding, Op::Correlate)
 }
 
-/// The correlation with a rounding mode; floats ignore it.
-fn correlate_rounded<S: MulAcc<T>, T: Sample>(
+/// Which of the two operations [`finite`] computes.
+#[derive(Clone, Copy)]
+enum Op {
+    Convolve,
+    Correlate,
+}
+
+/// Convolution or correlation with a rounding mode; floats ignore it (their `finish` has no
+/// rounding step).
+fn finite<S: MulAcc<T>, T: Sample>(
     signal: &[S],
     kernel: &[T],
     out: &mut [S],
     span: Span,
     rounding: Rounding,
+    op: Op,
 ) -> Result<usize, Error> {
-    let first = check(signal, kernel, out, Span::correlation_layout, span)?;
-    if !S::accumulator_fits(kernel) {
-        return Err(Error::AccumulatorOverflow);
-    }
+    let layout = match op {
+        Op::Convolve => Span::layout,
+        Op::Correlate => Span::correlation_layout,
+    };
+    let first = check(signal, kernel, out, layout, span)?;
     let (l, k) = (signal.len(), kernel.len());
-    let mut saturated = 0;
-    for (n, y) in (first..).zip(out.iter_mut()) {
-        // Kernel indices with a signal sample: max(0, K−1−n) ..= min(K−1, L+K−2−n).
-        let k_lo = (k - 1).saturating_sub(n);
-        let k_hi = (k - 1).min(l + k - 2 - n);
-        let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
-        let start = n + k_lo + 1 - k;
-        let xs = signal.get(start..).unwrap_or(&[]);
-        let (v, sat) = S::finish(dot::<S, T, DefaultAcc>(S::ACC_ZERO, taps, xs), rounding);
-        *y = v;
-        saturated += usize::from(sat);
-    }
-    Ok(saturated)
+    Ok(match op {
+        Op::Convolve => finish_each(out, first, rounding, |n| {
+            // Kernel indices that meet a signal sample: max(0, n−L+1) ..= min(n, K−1).
+            let k_lo = (n + 1).saturating_sub(l);
+            let k_hi = n.min(k - 1);
+            let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
+            let xs = signal.get(n - k_hi..=n - k_lo).unwrap_or(&[]);
+            // The dispatched sum (`kernel::Kernels`): the target's kernel where there is one.
+            S::dot_reversed(S::ACC_ZERO, taps, xs)
+        }),
+        Op::Correlate => finish_each(out, first, rounding, |n| {
+            // Kernel indices with a signal sample: max(0, K−1−n) ..= min(K−1, L+K−2−n).
+            let k_lo = (k - 1).saturating_sub(n);
+            let k_hi = (k - 1).min(l + k - 2 - n);
+            let taps = kernel.get(k_lo..=k_hi).unwrap_or(&[]);
+            let start = n + k_lo + 1 - k;
+            let xs = signal.get(start..).unwrap_or(&[]);
+            dot::<S, T, DefaultAcc>(S::ACC_ZERO, taps, xs)
+        }),
+    })
 }
