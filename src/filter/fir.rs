@@ -332,8 +332,9 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample + 'a, W, H: TapTable<'a, T, 
     ///
     /// ```compile_fail
     /// use tapline::{Fir, Rounding};
-    /// static TAPS: [f32; 2] = [0.5, 0.5];
-    /// let fir = Fir::<f32, 2>::new(&TAPS).unwrap().with_rounding(Rounding::Truncate);
+    /// fn float_rounding(fir: Fir<'_, f32, 2>) -> Fir<'_, f32, 2> {
+    ///     fir.with_rounding(Rounding::Truncate) // floats have no rounding step
+    /// }
     /// ```
     #[must_use]
     pub fn with_rounding(mut self, rounding: Rounding) -> Self
