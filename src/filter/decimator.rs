@@ -68,14 +68,19 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
 
     /// Writes the tail of the signal filtered by `taps` ([`Tail`]), then restarts: zero
     /// history, the start phase again; the saturation count keeps the tail's events.
-    pub(crate) fn flush<T: Sample, W>(&mut self, taps: &[T], output: &mut [S]) -> Result<usize, Error>
+    pub(crate) fn flush<T: Sample, W>(
+        &mut self,
+        taps: &[T],
+        output: &mut [S],
+    ) -> Result<usize, Error>
     where
         S: MulAcc<T, W>,
     {
         let tail = self.tail();
         let (history, step) = (&self.history, &mut self.output);
         let written = tail.fill(taps.len(), output, |from| {
-            let acc = history_dot::<S, T, W, N>(S::ACC_ZERO, history, taps.get(from..).unwrap_or(&[]));
+            let acc =
+                history_dot::<S, T, W, N>(S::ACC_ZERO, history, taps.get(from..).unwrap_or(&[]));
             step.finish::<S, T, W>(acc)
         })?;
         self.restart();

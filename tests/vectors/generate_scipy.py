@@ -24,6 +24,11 @@ for this test; every expected value is computed here by scipy/numpy from those s
     prototype taps scipy.signal.firwin(K, 1/max(L, M)) * L (tap counts K that are and are not
     multiples of L) and an invented input (two tones and a step); the first ceil(len(x)*L/M)
     outputs, those a stream of len(x) inputs produces.
+  * whole signals (own section, WHOLE_*): scipy.signal.upfirdn's entire output, zero-padded tail
+    included, for a decimator by M from every start phase p (p = 0: upfirdn(h, x, 1, M); p > 0:
+    upfirdn(h, x)[p::M], the full-rate output from p), an interpolator by L (upfirdn(h, x, L))
+    and a resampler by L/M (upfirdn(h, x, L, M)); taps scipy.signal.firwin(K, 1/max(L, M)) * L,
+    input lengths that are not multiples of the factors, some shorter than the taps.
 
 Usage: python3 tests/vectors/generate_scipy.py [--allow-other-versions] [--out DIR]
 """
@@ -128,6 +133,68 @@ def resample_input(n):
     i = np.arange(n, dtype=np.float64)
     return (0.5 * np.sin(2 * np.pi * 0.03 * i) + 0.25 * np.cos(2 * np.pi * 0.11 * i + 0.4)
             + 0.2 * (i >= 20))
+
+
+# ---------------------------------------------------------------------------------------------
+# Whole signals: streamed outputs plus the flushed tail against upfirdn's entire output.
+# ---------------------------------------------------------------------------------------------
+
+# Invented. Decimators (M, K, n): every start phase 0..M-1 is generated for each. K = 1 has no
+# tail; n = 3 < K leaves a tail longer than the signal.
+WHOLE_DECIMATE = [(3, 10, 37), (4, 7, 37), (5, 13, 3), (2, 1, 5)]
+# Interpolators (L, K, n): K = 3 < L = 5 has no tail; n = 1 is a single sample.
+WHOLE_INTERPOLATE = [(3, 10, 37), (4, 16, 11), (2, 7, 1), (5, 3, 6)]
+# Resamplers (L, M, K, n).
+WHOLE_RESAMPLE = [(3, 2, 24, 37), (2, 3, 25, 37), (5, 4, 41, 11), (1, 3, 31, 37), (4, 1, 30, 2),
+                  (2, 2, 9, 7), (3, 5, 8, 1)]
+
+
+def whole_input(n):
+    """Invented input: two tones and a step at n = 5, within (-1, 1)."""
+    i = np.arange(n, dtype=np.float64)
+    return (0.55 * np.sin(2 * np.pi * 0.07 * i) - 0.3 * np.cos(2 * np.pi * 0.19 * i + 1.1)
+            + 0.12 * (i >= 5))
+
+
+def whole_taps(up, down, k):
+    return signal.firwin(k, 1.0 / max(up, down)) * up if k > 1 else np.array([float(up)])
+
+
+def whole_cases():
+    """(up, down, phase, taps, input, upfirdn's entire output) for every WHOLE_* case."""
+    out = []
+    for m, k, n in WHOLE_DECIMATE:
+        h, x = whole_taps(1, m, k), whole_input(n)
+        full = signal.upfirdn(h, x)
+        for p in range(m):
+            y = signal.upfirdn(h, x, 1, m) if p == 0 else full[p::m]
+            assert len(y) == len(full[p::m]), (m, k, n, p)
+            out.append((1, m, p, h, x, y))
+    for up, k, n in WHOLE_INTERPOLATE:
+        h, x = whole_taps(up, 1, k), whole_input(n)
+        out.append((up, 1, 0, h, x, signal.upfirdn(h, x, up)))
+    for up, down, k, n in WHOLE_RESAMPLE:
+        h, x = whole_taps(up, down, k), whole_input(n)
+        out.append((up, down, 0, h, x, signal.upfirdn(h, x, up, down)))
+    return out
+
+
+def emit_whole(w):
+    w("/// Whole signals: upfirdn's entire output (the zero-padded tail included). Decimators have")
+    w("/// up = 1 (phase p: upfirdn(h, x, 1, M) for p = 0, upfirdn(h, x)[p::M] otherwise),")
+    w("/// interpolators down = 1, resamplers both above 1 or one of them 1 with the other factor;")
+    w("/// taps firwin(K, 1/max(up, down)) * up, input the invented whole_input(n).")
+    w("const WHOLE: &[WholeCase] = &[")
+    for up, down, p, h, x, y in whole_cases():
+        w("    WholeCase {")
+        w(f"        up: {up},")
+        w(f"        down: {down},")
+        w(f"        phase: {p},")
+        w(f"        taps: {rs_list(h, indent='            ')},")
+        w(f"        input: {rs_list(x, indent='            ')},")
+        w(f"        output: {rs_list(y, indent='            ')},")
+        w("    },")
+    w("];")
 
 
 def firwin_for(kind, numtaps, cutoff, window, fs):
@@ -298,6 +365,9 @@ def main():
         w(f"        output: {rs_list(y[:count], indent='            ')},")
         w("    },")
     w("];")
+
+    w("")
+    emit_whole(w)
 
     with open(out_path, "w", encoding="utf-8", newline="\n") as fh:
         fh.write("\n".join(o) + "\n")
