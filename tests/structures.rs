@@ -980,69 +980,35 @@ fn half_band_lowpass_has_zero_taps_a_centre_of_one_half_and_skips_them() {
 // ------------------------------------------------------------------------------------------
 
 /// The calls that end a finite signal, for one checker over every structure that has them.
-trait Flushing<S> {
-    fn stream(&mut self, block: &[S]) -> Vec<S>;
+trait Flushing<S: Sample> {
+    fn process(&mut self, input: &[S], output: &mut [S]) -> Result<usize, Error>;
     fn tail_len(&self) -> usize;
     fn flush(&mut self, output: &mut [S]) -> Result<usize, Error>;
     fn saturations(&self) -> u32;
-}
 
-impl<'a, S, const N: usize, const M: usize, T, W, H> Flushing<S> for Decimator<'a, S, N, M, T, W, H>
-where
-    S: MulAcc<T, W>,
-    T: Sample + 'a,
-    H: tapline::filter::TapTable<'a, T, N>,
-{
+    /// One block call, with room for the most outputs any factor here gives (L ≤ 6).
     fn stream(&mut self, block: &[S]) -> Vec<S> {
-        let mut out = vec![S::ZERO; self.outputs_for(block.len())];
-        assert_eq!(self.process(block, &mut out), Ok(out.len()));
+        let mut out = vec![S::ZERO; block.len() * 6];
+        let written = self.process(block, &mut out).unwrap();
+        out.truncate(written);
         out
     }
-    fn tail_len(&self) -> usize {
-        Decimator::tail_len(self)
-    }
-    fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
-        Decimator::flush(self, output)
-    }
-    fn saturations(&self) -> u32 {
-        Decimator::saturations(self)
-    }
 }
 
-impl<S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W> Flushing<S>
-    for Interpolator<'_, S, N, L, T, W>
-{
-    fn stream(&mut self, block: &[S]) -> Vec<S> {
-        // Per sample here (the block call is the resampler's and decimator's way).
-        block.iter().flat_map(|&x| self.push(x)).collect()
-    }
-    fn tail_len(&self) -> usize {
-        Interpolator::tail_len(self)
-    }
-    fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
-        Interpolator::flush(self, output)
-    }
-    fn saturations(&self) -> u32 {
-        Interpolator::saturations(self)
-    }
+macro_rules! flushing {
+    ($ty:ty, [$($gen:tt)*]) => {
+        impl<$($gen)*> Flushing<S> for $ty {
+            fn process(&mut self, i: &[S], o: &mut [S]) -> Result<usize, Error> { <$ty>::process(self, i, o) }
+            fn tail_len(&self) -> usize { <$ty>::tail_len(self) }
+            fn flush(&mut self, o: &mut [S]) -> Result<usize, Error> { <$ty>::flush(self, o) }
+            fn saturations(&self) -> u32 { <$ty>::saturations(self) }
+        }
+    };
 }
 
-impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Flushing<S> for Resampler<'_, S, C, T, W> {
-    fn stream(&mut self, block: &[S]) -> Vec<S> {
-        let mut out = vec![S::ZERO; self.outputs_for(block.len())];
-        assert_eq!(self.process(block, &mut out), Ok(out.len()));
-        out
-    }
-    fn tail_len(&self) -> usize {
-        Resampler::tail_len(self)
-    }
-    fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
-        Resampler::flush(self, output)
-    }
-    fn saturations(&self) -> u32 {
-        Resampler::saturations(self)
-    }
-}
+flushing!(Decimator<'a, S, N, M, T, W, H>, ['a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample + 'a, W, H: tapline::filter::TapTable<'a, T, N>]);
+flushing!(Interpolator<'_, S, N, L, T, W>, [S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W]);
+flushing!(Resampler<'_, S, C, T, W>, [S: MulAcc<T, W>, const C: usize, T: Sample, W]);
 
 /// Two whole signals, one after the other, each streamed in blocks cut by `sizes` and then
 /// flushed, against the exact upfirdn model (`factors` = (L, M, start phase)): upfirdn's length
@@ -1053,10 +1019,10 @@ fn check_whole_signals<S: Sample + Raw>(
     f: &mut impl Flushing<S>,
     h: &[i64],
     factors: (usize, usize, usize),
-    signals: [&[i64]; 2],
-    sizes: &[usize],
-    (frac, mode): (u32, Rounding),
+    frac: u32,
+    run: &WholeRun<'_>,
 ) {
+    let (signals, sizes, mode) = (run.signals, run.sizes, run.mode);
     let mut sats = 0;
     for (which, x) in signals.into_iter().enumerate() {
         let what = format!(
@@ -1093,6 +1059,13 @@ fn check_whole_signals<S: Sample + Raw>(
     }
 }
 
+/// Two signals, the block split and the rounding mode of one whole-signal case.
+struct WholeRun<'r> {
+    signals: [&'r [i64]; 2],
+    sizes: &'r [usize],
+    mode: Rounding,
+}
+
 /// Raw taps as a table of `N`.
 fn table<T: Raw, const N: usize>(h: &[i64]) -> [T; N] {
     core::array::from_fn(|k| T::from_raw(h[k]))
@@ -1103,9 +1076,7 @@ fn table<T: Raw, const N: usize>(h: &[i64]) -> [T; N] {
 fn whole_decimators<S, T, W, const N: usize, const M: usize>(
     h: &[i64],
     phase: usize,
-    signals: [&[i64]; 2],
-    sizes: &[usize],
-    mode: Rounding,
+    run: &WholeRun<'_>,
 ) where
     S: MulAcc<T, W> + Raw,
     T: Sample + Raw,
@@ -1123,47 +1094,40 @@ fn whole_decimators<S, T, W, const N: usize, const M: usize>(
             factor: M
         })
     );
-    let mut dec = dec.with_rounding(mode).with_start_phase(phase).unwrap();
+    let mut dec = dec.with_rounding(run.mode).with_start_phase(phase).unwrap();
     assert_eq!((dec.start_phase(), dec.phase()), (phase, M - 1 - phase));
-    let ctx = (T::FRAC, mode);
-    check_whole_signals(&mut dec, &h[..N], (1, M, phase), signals, sizes, ctx);
+    check_whole_signals(&mut dec, &h[..N], (1, M, phase), T::FRAC, run);
     let run_time: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
     let up_to = tapline::filter::DecimatorUpTo::<S, 16, M, T, W>::with_taps(&run_time).unwrap();
-    let mut up_to = up_to.with_rounding(mode).with_start_phase(phase).unwrap();
-    check_whole_signals(&mut up_to, h, (1, M, phase), signals, sizes, ctx);
+    let mut up_to = up_to
+        .with_rounding(run.mode)
+        .with_start_phase(phase)
+        .unwrap();
+    check_whole_signals(&mut up_to, h, (1, M, phase), T::FRAC, run);
 }
 
-fn whole_interpolator<S, T, W, const N: usize, const L: usize>(
-    h: &[i64],
-    signals: [&[i64]; 2],
-    sizes: &[usize],
-    mode: Rounding,
-) where
+fn whole_interpolator<S, T, W, const N: usize, const L: usize>(h: &[i64], run: &WholeRun<'_>)
+where
     S: MulAcc<T, W> + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
     let taps: [T; N] = table(h);
     let up = Interpolator::<S, N, L, T, W>::with_accumulator(&taps).unwrap();
-    let mut up = up.with_rounding(mode);
-    check_whole_signals(&mut up, h, (L, 1, 0), signals, sizes, (T::FRAC, mode));
+    let mut up = up.with_rounding(run.mode);
+    check_whole_signals(&mut up, h, (L, 1, 0), T::FRAC, run);
 }
 
-fn whole_resampler<S, T, W>(
-    h: &[i64],
-    (l, m): (usize, usize),
-    signals: [&[i64]; 2],
-    sizes: &[usize],
-    mode: Rounding,
-) where
+fn whole_resampler<S, T, W>(h: &[i64], (l, m): (usize, usize), run: &WholeRun<'_>)
+where
     S: MulAcc<T, W> + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
     let taps: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
     let rs = Resampler::<S, 24, T, W>::with_accumulator(&taps, l as u16, m as u16).unwrap();
-    let mut rs = rs.with_rounding(mode);
-    check_whole_signals(&mut rs, h, (l, m, 0), signals, sizes, (T::FRAC, mode));
+    let mut rs = rs.with_rounding(run.mode);
+    check_whole_signals(&mut rs, h, (l, m, 0), T::FRAC, run);
 }
 
 /// A second, shorter signal (to follow a flush).
@@ -1184,11 +1148,13 @@ proptest! {
             seed16 in scaled_codes(16, 16), seed32 in scaled_codes(32, 16),
             x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
             sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
         with_const!(n, [1, 2, 5, 13], |N| with_const!(m, [1, 2, 3, 5], |M| {
             let p = phase.index(M);
-            whole_decimators::<i16, i16, DefaultAcc, N, M>(&seed16[..k.max(N)], p, [&x16, &y16], &sizes, mode);
-            whole_decimators::<I4F12, I1F15, DefaultAcc, N, M>(&seed16[..k.max(N)], p, [&x16, &y16], &sizes, mode);
-            whole_decimators::<i32, i32, Acc128, N, M>(&seed32[..k.max(N)], p, [&x32, &y32], &sizes, mode);
+            whole_decimators::<i16, i16, DefaultAcc, N, M>(&seed16[..k.max(N)], p, &run16);
+            whole_decimators::<I4F12, I1F15, DefaultAcc, N, M>(&seed16[..k.max(N)], p, &run16);
+            whole_decimators::<i32, i32, Acc128, N, M>(&seed32[..k.max(N)], p, &run32);
         }));
     }
 
@@ -1200,10 +1166,12 @@ proptest! {
             seed16 in scaled_codes(16, 16), seed32 in scaled_codes(32, 16),
             x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
             sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
         with_const!(n, [1, 2, 3, 4, 7, 16], |N| with_const!(l, [1, 2, 3, 5], |L| {
-            whole_interpolator::<i16, i16, DefaultAcc, N, L>(&seed16[..N], [&x16, &y16], &sizes, mode);
-            whole_interpolator::<I4F12, I1F15, DefaultAcc, N, L>(&seed16[..N], [&x16, &y16], &sizes, mode);
-            whole_interpolator::<i32, i32, Acc128, N, L>(&seed32[..N], [&x32, &y32], &sizes, mode);
+            whole_interpolator::<i16, i16, DefaultAcc, N, L>(&seed16[..N], &run16);
+            whole_interpolator::<I4F12, I1F15, DefaultAcc, N, L>(&seed16[..N], &run16);
+            whole_interpolator::<i32, i32, Acc128, N, L>(&seed32[..N], &run32);
         }));
     }
 
@@ -1215,8 +1183,10 @@ proptest! {
             seed16 in scaled_codes(16, 24), seed32 in scaled_codes(32, 24),
             x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
             sizes in splits(), mode in any_rounding()) {
-        whole_resampler::<i16, i16, DefaultAcc>(&seed16[..k], (l, m), [&x16, &y16], &sizes, mode);
-        whole_resampler::<I4F12, I1F15, DefaultAcc>(&seed16[..k], (l, m), [&x16, &y16], &sizes, mode);
-        whole_resampler::<i32, i32, Acc128>(&seed32[..k], (l, m), [&x32, &y32], &sizes, mode);
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
+        whole_resampler::<i16, i16, DefaultAcc>(&seed16[..k], (l, m), &run16);
+        whole_resampler::<I4F12, I1F15, DefaultAcc>(&seed16[..k], (l, m), &run16);
+        whole_resampler::<i32, i32, Acc128>(&seed32[..k], (l, m), &run32);
     }
 }

@@ -159,7 +159,9 @@ impl<S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W>
     /// How many outputs [`flush`](Interpolator::flush) writes: N − L (0 when N ≤ L). For n
     /// inputs the stream gives n·L outputs and the tail the rest of the convolution of the
     /// zero-stuffed signal, (n − 1)·L + N in all: `scipy.signal.upfirdn(h, x, L)`'s length.
-    /// With no input since construction, reset or flush the tail is N − L zeros.
+    /// With no input since construction, reset or flush the tail is N − L zeros. With N < L
+    /// there is no tail, and the last L − N outputs of each input lie past upfirdn's end: its
+    /// phases N … L − 1 hold no taps, so those outputs are zeros.
     ///
     /// ```
     /// use tapline::Interpolator;

@@ -286,7 +286,8 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
     /// convolution, jM ≤ (n − 1)·L + K − 1 for n inputs and K taps. The stream's outputs plus
     /// these are `scipy.signal.upfirdn(h, x, L, M)`'s length, ⌊((n − 1)·L + K − 1)/M⌋ + 1.
     /// With no input since construction, reset or flush (n = 0) the tail is that many zeros
-    /// when K > L, none otherwise.
+    /// when K > L, none otherwise. With K < L the stream's last outputs can already lie past
+    /// upfirdn's end (phases K … L − 1 hold no taps, so they are zeros) and the tail is empty.
     ///
     /// ```
     /// use tapline::Resampler;

@@ -145,8 +145,9 @@ WHOLE_DECIMATE = [(3, 10, 37), (4, 7, 37), (5, 13, 3), (2, 1, 5)]
 # Interpolators (L, K, n): K = 3 < L = 5 has no tail; n = 1 is a single sample.
 WHOLE_INTERPOLATE = [(3, 10, 37), (4, 16, 11), (2, 7, 1), (5, 3, 6)]
 # Resamplers (L, M, K, n).
-WHOLE_RESAMPLE = [(3, 2, 24, 37), (2, 3, 25, 37), (5, 4, 41, 11), (1, 3, 31, 37), (4, 1, 30, 2),
-                  (2, 2, 9, 7), (3, 5, 8, 1)]
+# Tap counts other than the RESAMPLE section's, so no prototype is stored twice.
+WHOLE_RESAMPLE = [(3, 2, 22, 37), (2, 3, 27, 37), (5, 4, 43, 11), (1, 3, 29, 37), (4, 1, 26, 2),
+                  (2, 2, 11, 7), (3, 5, 8, 1)]
 
 
 def whole_input(n):
@@ -161,38 +162,45 @@ def whole_taps(up, down, k):
 
 
 def whole_cases():
-    """(up, down, phase, taps, input, upfirdn's entire output) for every WHOLE_* case."""
+    """(up, down, taps, input, [upfirdn's entire output per start phase]) for every WHOLE_* case:
+    a decimator has one output per start phase 0..M-1, the others one (phase 0)."""
     out = []
     for m, k, n in WHOLE_DECIMATE:
         h, x = whole_taps(1, m, k), whole_input(n)
         full = signal.upfirdn(h, x)
-        for p in range(m):
-            y = signal.upfirdn(h, x, 1, m) if p == 0 else full[p::m]
-            assert len(y) == len(full[p::m]), (m, k, n, p)
-            out.append((1, m, p, h, x, y))
+        phases = [signal.upfirdn(h, x, 1, m)] + [full[p::m] for p in range(1, m)]
+        assert len(phases[0]) == len(full[::m]), (m, k, n)
+        out.append((1, m, h, x, phases))
     for up, k, n in WHOLE_INTERPOLATE:
         h, x = whole_taps(up, 1, k), whole_input(n)
-        out.append((up, 1, 0, h, x, signal.upfirdn(h, x, up)))
+        out.append((up, 1, h, x, [signal.upfirdn(h, x, up)]))
     for up, down, k, n in WHOLE_RESAMPLE:
         h, x = whole_taps(up, down, k), whole_input(n)
-        out.append((up, down, 0, h, x, signal.upfirdn(h, x, up, down)))
+        out.append((up, down, h, x, [signal.upfirdn(h, x, up, down)]))
     return out
 
 
 def emit_whole(w):
+    longest = max(len(x) for *_, x, _ in whole_cases())
+    x_all = whole_input(longest)
+    w("/// The invented input of every WHOLE case (whole_input), each taking its first `len`.")
+    w(f"const WHOLE_INPUT: &[f64] = {rs_list(x_all, indent='    ')};")
     w("/// Whole signals: upfirdn's entire output (the zero-padded tail included). Decimators have")
-    w("/// up = 1 (phase p: upfirdn(h, x, 1, M) for p = 0, upfirdn(h, x)[p::M] otherwise),")
-    w("/// interpolators down = 1, resamplers both above 1 or one of them 1 with the other factor;")
-    w("/// taps firwin(K, 1/max(up, down)) * up, input the invented whole_input(n).")
+    w("/// up = 1 and one output per start phase p (upfirdn(h, x, 1, M) for p = 0, upfirdn(h, x)[p::M]")
+    w("/// otherwise); interpolators down = 1 and resamplers one output each (phase 0); taps")
+    w("/// firwin(K, 1/max(up, down)) * up, input the first `len` samples of WHOLE_INPUT.")
     w("const WHOLE: &[WholeCase] = &[")
-    for up, down, p, h, x, y in whole_cases():
+    for up, down, h, x, phases in whole_cases():
         w("    WholeCase {")
         w(f"        up: {up},")
         w(f"        down: {down},")
-        w(f"        phase: {p},")
         w(f"        taps: {rs_list(h, indent='            ')},")
-        w(f"        input: {rs_list(x, indent='            ')},")
-        w(f"        output: {rs_list(y, indent='            ')},")
+        assert np.array_equal(x, x_all[:len(x)])
+        w(f"        len: {len(x)},")
+        w("        outputs: &[")
+        for y in phases:
+            w(f"            {rs_list(y, indent='                ')},")
+        w("        ],")
         w("    },")
     w("];")
 
