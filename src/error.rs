@@ -43,6 +43,14 @@ pub enum Error {
         /// The length that was passed.
         found: usize,
     },
+    /// A decimator's start phase (the full-rate output index, modulo the factor, that it keeps
+    /// first) is not below its decimation factor.
+    StartPhaseTooLarge {
+        /// The start phase asked for.
+        phase: usize,
+        /// The decimation factor M; a start phase is 0 to M − 1.
+        factor: usize,
+    },
     /// Taps that a folded (linear-phase) filter needs symmetric or antisymmetric are neither.
     NotLinearPhase,
     /// Taps that a half-band filter needs in half-band form are not: an odd count, with every
@@ -116,6 +124,12 @@ impl fmt::Display for Error {
             Error::OutputTooShort { needed, found } => write!(
                 f,
                 "output buffer has {found} elements but the call produces {needed}"
+            ),
+            Error::StartPhaseTooLarge { phase, factor } => write!(
+                f,
+                "start phase {phase} is not below the decimation factor {factor}: the first \
+                 output kept must be one of the full-rate outputs 0 to {}",
+                factor.saturating_sub(1)
             ),
             Error::NotLinearPhase => f.write_str(
                 "the taps are neither symmetric nor antisymmetric, so they cannot be folded",

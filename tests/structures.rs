@@ -997,3 +997,219 @@ fn half_band_lowpass_has_zero_taps_a_centre_of_one_half_and_skips_them() {
         );
     }
 }
+
+// ------------------------------------------------------------------------------------------
+// Whole signals: stream, flush the tail, start the next signal
+// ------------------------------------------------------------------------------------------
+
+/// The calls that end a finite signal, for one checker over every structure that has them.
+trait Flushing<S: Sample> {
+    fn process(&mut self, input: &[S], output: &mut [S]) -> Result<usize, Error>;
+    fn tail_len(&self) -> usize;
+    fn flush(&mut self, output: &mut [S]) -> Result<usize, Error>;
+    fn saturations(&self) -> u32;
+
+    /// One block call, with room for the most outputs any factor here gives (L ≤ 6).
+    fn stream(&mut self, block: &[S]) -> Vec<S> {
+        let mut out = vec![S::ZERO; block.len() * 6];
+        let written = self.process(block, &mut out).unwrap();
+        out.truncate(written);
+        out
+    }
+}
+
+macro_rules! flushing {
+    ($ty:ty, [$($gen:tt)*]) => {
+        impl<$($gen)*> Flushing<S> for $ty {
+            fn process(&mut self, i: &[S], o: &mut [S]) -> Result<usize, Error> { <$ty>::process(self, i, o) }
+            fn tail_len(&self) -> usize { <$ty>::tail_len(self) }
+            fn flush(&mut self, o: &mut [S]) -> Result<usize, Error> { <$ty>::flush(self, o) }
+            fn saturations(&self) -> u32 { <$ty>::saturations(self) }
+        }
+    };
+}
+
+flushing!(Decimator<'a, S, N, M, T, W, H>, ['a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample + 'a, W, H: tapline::filter::TapTable<'a, T, N>]);
+flushing!(Interpolator<'_, S, N, L, T, W>, [S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W]);
+flushing!(Resampler<'_, S, C, T, W>, [S: MulAcc<T, W>, const C: usize, T: Sample, W]);
+
+/// Two whole signals, one after the other, each streamed in blocks cut by `sizes` and then
+/// flushed, against the exact upfirdn model (`factors` = (L, M, start phase)): upfirdn's length
+/// (stream + tail), every output bit for bit, a too short flush buffer refused without a
+/// change, nothing written past the tail, the saturations of both signals (tails included)
+/// counted across the flush. The second signal checks the state a flush leaves: a new start.
+fn check_whole_signals<S: Sample + Raw>(
+    f: &mut impl Flushing<S>,
+    h: &[i64],
+    factors: (usize, usize, usize),
+    frac: u32,
+    run: &WholeRun<'_>,
+) {
+    let (signals, sizes, mode) = (run.signals, run.sizes, run.mode);
+    let mut sats = 0;
+    for (which, x) in signals.into_iter().enumerate() {
+        let what = format!(
+            "signal {which} of {} inputs, (L, M, phase) {factors:?}",
+            x.len()
+        );
+        let (want, s) = expected::<S>(&upfirdn_finished(h, x, factors, frac, S::BITS, mode));
+        sats += s;
+        let mut got = in_blocks(&raws::<S>(x), sizes, |b| f.stream(b));
+        let tail = f.tail_len();
+        if got.len() > want.len() {
+            // Fewer taps than L: the phases without taps give zeros, and the last input's past
+            // upfirdn's end have no tail after them.
+            assert!(h.len() < factors.0 && tail == 0, "{what}");
+            let past = got.split_off(want.len());
+            assert!(past.iter().all(|&v| v == S::ZERO), "{what}: {past:?}");
+        }
+        assert_eq!(got.len() + tail, want.len(), "{what}: stream + tail");
+        if tail > 0 {
+            refuses_one_short::<S>(tail, |short| f.flush(short));
+            assert_eq!(
+                f.tail_len(),
+                tail,
+                "{what}: a refused flush changed the state"
+            );
+        }
+        let spare = S::from_raw(1);
+        let mut room = vec![spare; tail + 1];
+        assert_eq!(f.flush(&mut room), Ok(tail), "{what}");
+        assert_eq!(room.pop(), Some(spare), "{what}: written past the tail");
+        got.extend(room);
+        assert_eq!(got, want, "{what}, splits {sizes:?}");
+        assert_eq!(f.saturations(), sats, "{what}: saturations");
+    }
+}
+
+/// Two signals, the block split and the rounding mode of one whole-signal case.
+struct WholeRun<'r> {
+    signals: [&'r [i64]; 2],
+    sizes: &'r [usize],
+    mode: Rounding,
+}
+
+/// Raw taps as a table of `N`.
+fn table<T: Raw, const N: usize>(h: &[i64]) -> [T; N] {
+    core::array::from_fn(|k| T::from_raw(h[k]))
+}
+
+/// Both decimator forms from start phase `phase`: `Decimator<S, N, M>` on `h[..N]` and
+/// `DecimatorUpTo<S, 16, M>` on all of `h` (1 to 16 taps), refusing the start phase M.
+fn whole_decimators<S, T, W, const N: usize, const M: usize>(
+    h: &[i64],
+    phase: usize,
+    run: &WholeRun<'_>,
+) where
+    S: MulAcc<T, W> + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let taps: [T; N] = table(h);
+    let dec = Decimator::<S, N, M, T, W>::with_accumulator(&taps).unwrap();
+    assert_eq!(dec.start_phase(), M - 1, "the default start phase");
+    let again = Decimator::<S, N, M, T, W>::with_accumulator(&taps).unwrap();
+    let refused = again.with_start_phase(M).err();
+    assert_eq!(
+        refused,
+        Some(Error::StartPhaseTooLarge {
+            phase: M,
+            factor: M
+        })
+    );
+    let mut dec = dec.with_rounding(run.mode).with_start_phase(phase).unwrap();
+    assert_eq!((dec.start_phase(), dec.phase()), (phase, M - 1 - phase));
+    check_whole_signals(&mut dec, &h[..N], (1, M, phase), T::FRAC, run);
+    let run_time: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
+    let up_to = tapline::filter::DecimatorUpTo::<S, 16, M, T, W>::with_taps(&run_time).unwrap();
+    let mut up_to = up_to
+        .with_rounding(run.mode)
+        .with_start_phase(phase)
+        .unwrap();
+    check_whole_signals(&mut up_to, h, (1, M, phase), T::FRAC, run);
+}
+
+fn whole_interpolator<S, T, W, const N: usize, const L: usize>(h: &[i64], run: &WholeRun<'_>)
+where
+    S: MulAcc<T, W> + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let taps: [T; N] = table(h);
+    let up = Interpolator::<S, N, L, T, W>::with_accumulator(&taps).unwrap();
+    let mut up = up.with_rounding(run.mode);
+    check_whole_signals(&mut up, h, (L, 1, 0), T::FRAC, run);
+}
+
+fn whole_resampler<S, T, W>(h: &[i64], (l, m): (usize, usize), run: &WholeRun<'_>)
+where
+    S: MulAcc<T, W> + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let taps: Vec<T> = h.iter().map(|&v| T::from_raw(v)).collect();
+    let rs = Resampler::<S, 24, T, W>::with_accumulator(&taps, l as u16, m as u16).unwrap();
+    let mut rs = rs.with_rounding(run.mode);
+    check_whole_signals(&mut rs, h, (l, m, 0), T::FRAC, run);
+}
+
+/// A second, shorter signal (to follow a flush).
+fn next_signal(bits: u32) -> impl Strategy<Value = Vec<i64>> {
+    prop::collection::vec(code(bits), 0..40)
+}
+
+proptest! {
+    #![proptest_config(cases::config())]
+
+    /// Decimators from every start phase, streamed and flushed, = the exact upfirdn model
+    /// (full convolution, every M-th output from the phase, the zero-padded tail included),
+    /// bit for bit: compile-time and run-time taps, Q15, Q4.12/Q1.15 and Q31 with `i128`.
+    #[test]
+    fn decimator_whole_signals_equal_the_upfirdn_model(
+            n in prop::sample::select(vec![1usize, 2, 5, 13]), m in prop::sample::select(vec![1usize, 2, 3, 5]),
+            phase in any::<prop::sample::Index>(), k in 1usize..=16,
+            seed16 in scaled_codes(16, 16), seed32 in scaled_codes(32, 16),
+            x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
+            sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
+        with_const!(n, [1, 2, 5, 13], |N| with_const!(m, [1, 2, 3, 5], |M| {
+            let p = phase.index(M);
+            whole_decimators::<i16, i16, DefaultAcc, N, M>(&seed16[..k.max(N)], p, &run16);
+            whole_decimators::<I4F12, I1F15, DefaultAcc, N, M>(&seed16[..k.max(N)], p, &run16);
+            whole_decimators::<i32, i32, Acc128, N, M>(&seed32[..k.max(N)], p, &run32);
+        }));
+    }
+
+    /// Interpolators streamed and flushed = the exact upfirdn model by L, bit for bit,
+    /// including N < L (no tail; the stream's last outputs past upfirdn's end are zeros).
+    #[test]
+    fn interpolator_whole_signals_equal_the_upfirdn_model(
+            n in prop::sample::select(vec![1usize, 2, 3, 4, 7, 16]), l in prop::sample::select(vec![1usize, 2, 3, 5]),
+            seed16 in scaled_codes(16, 16), seed32 in scaled_codes(32, 16),
+            x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
+            sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
+        with_const!(n, [1, 2, 3, 4, 7, 16], |N| with_const!(l, [1, 2, 3, 5], |L| {
+            whole_interpolator::<i16, i16, DefaultAcc, N, L>(&seed16[..N], &run16);
+            whole_interpolator::<I4F12, I1F15, DefaultAcc, N, L>(&seed16[..N], &run16);
+            whole_interpolator::<i32, i32, Acc128, N, L>(&seed32[..N], &run32);
+        }));
+    }
+
+    /// Resamplers by L/M (1 to 6 each, not reduced) streamed and flushed = the exact upfirdn
+    /// model, bit for bit, for 1 to 24 taps.
+    #[test]
+    fn resampler_whole_signals_equal_the_upfirdn_model(
+            k in 1usize..=24, l in 1usize..=6, m in 1usize..=6,
+            seed16 in scaled_codes(16, 24), seed32 in scaled_codes(32, 24),
+            x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
+            sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
+        whole_resampler::<i16, i16, DefaultAcc>(&seed16[..k], (l, m), &run16);
+        whole_resampler::<I4F12, I1F15, DefaultAcc>(&seed16[..k], (l, m), &run16);
+        whole_resampler::<i32, i32, Acc128>(&seed32[..k], (l, m), &run32);
+    }
+}

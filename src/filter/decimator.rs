@@ -3,13 +3,14 @@
 
 use super::GroupDelay;
 use super::shared::{
-    OutputStep, Phase, decimate_block, decimate_in_place, history_dot, output_controls,
+    OutputStep, Phase, Tail, decimate_block, decimate_in_place, history_dot, output_controls,
 };
 use super::taps::TapTable;
 use crate::headroom::CheckedTaps;
 use crate::num::{Acc32Checked, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
+use core::num::NonZeroUsize;
 
 /// The cadence every decimating structure shares: a history fed every input, a phase that
 /// completes every `M` inputs, and the output step run only then.
@@ -17,17 +18,73 @@ use core::marker::PhantomData;
 pub(crate) struct Decimation<S, const N: usize, const M: usize> {
     pub(crate) history: Ring<S, N>,
     phase: Phase<M>,
+    /// The inputs the phase counts as taken at construction, reset and flush: M − 1 − the
+    /// start phase. Read only there, never by `push`.
+    restart: usize,
     pub(crate) output: OutputStep,
 }
 
 impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
+    /// M as the divisor of the tail's count (M > 0 is asserted at construction).
+    const DOWN: NonZeroUsize = match NonZeroUsize::new(M) {
+        Some(m) => m,
+        None => NonZeroUsize::MIN,
+    };
+
     pub(crate) fn new() -> Self {
         const { assert!(M > 0, "a decimation factor must be at least 1") };
         Decimation {
             history: Ring::new(S::ZERO),
             phase: Phase::default(),
+            restart: 0,
             output: OutputStep::new(),
         }
+    }
+
+    /// Keeps full-rate output `phase` first (then `phase` + M, …), counting from the next
+    /// input; the history stays.
+    pub(crate) fn set_start_phase(&mut self, phase: usize) -> Result<(), Error> {
+        if phase >= M {
+            return Err(Error::StartPhaseTooLarge { phase, factor: M });
+        }
+        self.restart = M - 1 - phase;
+        self.phase = Phase::counted(self.restart);
+        Ok(())
+    }
+
+    pub(crate) const fn start_phase(&self) -> usize {
+        M - 1 - self.restart
+    }
+
+    /// The zero-padded tail after the inputs so far: the next output lies M − 1 − (inputs
+    /// counted in its group) full-rate samples after the next input's.
+    pub(crate) const fn tail(&self) -> Tail {
+        Tail {
+            first: M - 1 - self.phase.position(),
+            up: 1,
+            down: Self::DOWN,
+        }
+    }
+
+    /// Writes the tail of the signal filtered by `taps` ([`Tail`]), then restarts: zero
+    /// history, the start phase again; the saturation count keeps the tail's events.
+    pub(crate) fn flush<T: Sample, W>(
+        &mut self,
+        taps: &[T],
+        output: &mut [S],
+    ) -> Result<usize, Error>
+    where
+        S: MulAcc<T, W>,
+    {
+        let tail = self.tail();
+        let (history, step) = (&self.history, &mut self.output);
+        let written = tail.fill(taps.len(), output, |from| {
+            let acc =
+                history_dot::<S, T, W, N>(S::ACC_ZERO, history, taps.get(from..).unwrap_or(&[]));
+            step.finish::<S, T, W>(acc)
+        })?;
+        self.restart();
+        Ok(written)
     }
 
     /// Pushes `x`; on the M-th input of a group, finishes `sum(history)` into an output.
@@ -82,9 +139,14 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
         self.phase.position()
     }
 
-    pub(crate) fn reset(&mut self) {
+    /// Zero history and the start phase; the saturation count stays.
+    fn restart(&mut self) {
         self.history.fill(S::ZERO);
-        self.phase = Phase::default();
+        self.phase = Phase::counted(self.restart);
+    }
+
+    pub(crate) fn reset(&mut self) {
+        self.restart();
         self.output.clear();
     }
 }
@@ -96,14 +158,21 @@ impl<S: Sample, const N: usize, const M: usize> Decimation<S, N, M> {
 /// multiply-accumulates per *output* (N/M per input) instead of N per input.
 ///
 /// * **What it computes:** exactly the plain [`Fir`](crate::Fir) on the same taps followed by
-///   keeping every M-th output — the one at the M-th, 2M-th, … input, i.e. full-rate outputs
-///   y\[M−1\], y\[2M−1\], … — bit for bit in fixed point, and with the same float operations in
-///   the same order for floats.
+///   keeping every M-th output — by default the one at the M-th, 2M-th, … input, i.e.
+///   full-rate outputs y\[M−1\], y\[2M−1\], …; from any start phase p < M, y\[p\],
+///   y\[p+M\], … ([`with_start_phase`](Decimator::with_start_phase); p = 0 is
+///   `scipy.signal.upfirdn`'s choice) — bit for bit in fixed point, and with the same float
+///   operations in the same order for floats.
+/// * **Finite signals:** [`flush`](Decimator::flush) writes the outputs of the zero-padded
+///   tail (the full convolution's last K − 1 samples, K the tap count) and readies the
+///   decimator for the next signal; streamed outputs plus the tail are `upfirdn`'s, output
+///   for output and in number.
 /// * **Accumulator, rounding, saturation:** those of `Fir` (one rounding step, clamped and
 ///   counted by [`saturations`](Decimator::saturations), never wrapped).
 /// * **Group delay:** (N−1)/2 input samples for symmetric or antisymmetric taps, i.e.
 ///   (N−1)/(2M) output samples ([`group_delay`](Decimator::group_delay), in input samples).
-/// * **RAM:** 2·N samples (the mirrored [`Ring`](crate::Ring)), one index, one phase counter, the borrowed taps, rounding, counter.
+/// * **RAM:** 2·N samples (the mirrored [`Ring`](crate::Ring)), one index, one phase counter,
+///   the start phase (one word), the borrowed taps, rounding, counter.
 /// * **Taps known at run time:** [`DecimatorUpTo`] holds a slice of 1 to `N` taps (`N` the
 ///   capacity) with the same code and bits as a decimator of exactly that many taps; its
 ///   history stays `2·N` samples.
@@ -178,7 +247,8 @@ pub type DecimatorUpTo<'a, S, const N: usize, const M: usize, T = S, W = Default
 
 impl<'a, S: MulAcc<T>, const N: usize, const M: usize, T: Sample> Decimator<'a, S, N, M, T> {
     /// A decimator with impulse response `taps` (h\[0\] multiplies the newest sample), the
-    /// default accumulator, zero history, phase 0, [`Rounding::HalfUp`](crate::Rounding::HalfUp).
+    /// default accumulator, zero history, start phase M − 1 (the first output at the M-th
+    /// input), [`Rounding::HalfUp`](crate::Rounding::HalfUp).
     ///
     /// # Errors
     /// [`Error::AccumulatorOverflow`] as for [`Fir::new`](crate::Fir::new).
@@ -218,7 +288,7 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W: RuntimeC
     DecimatorUpTo<'a, S, N, M, T, W>
 {
     /// A decimator of capacity `N` with the run-time tap set `taps` (1 to `N`), the
-    /// accumulator named by `W`, zero history, phase 0,
+    /// accumulator named by `W`, zero history, start phase M − 1,
     /// [`Rounding::HalfUp`](crate::Rounding::HalfUp).
     ///
     /// # Errors
@@ -315,8 +385,9 @@ where
         }
     }
 
-    /// Takes one input; returns `Some(y)` on every M-th input (the M-th, 2M-th, … since
-    /// construction or [`reset`](Decimator::reset)), `None` otherwise. Only the inputs that
+    /// Takes one input; returns `Some(y)` on every M-th input (by default the M-th, 2M-th, …
+    /// since construction, [`reset`](Decimator::reset) or [`flush`](Decimator::flush); the
+    /// (p+1)-th, (p+1+M)-th, … from start phase p), `None` otherwise. Only the inputs that
     /// return `Some` cost N multiply-accumulates; the others cost one ring push.
     #[inline]
     pub fn push(&mut self, x: S) -> Option<S> {
@@ -351,13 +422,141 @@ where
         self.core.outputs_for(len)
     }
 
-    /// Inputs taken since the last output, 0 ≤ · < M.
+    /// Inputs taken since the last output, 0 ≤ · < M. After construction, [`reset`] and
+    /// [`flush`] it is M − 1 − [`start_phase`], as if an output had been kept M full-rate
+    /// samples before the first.
+    ///
+    /// [`reset`]: Decimator::reset
+    /// [`flush`]: Decimator::flush
+    /// [`start_phase`]: Decimator::start_phase
     #[must_use]
     pub const fn phase(&self) -> usize {
         self.core.position()
     }
 
-    /// Zero history, phase 0, zero saturation count; taps and rounding stay.
+    /// The same decimator keeping full-rate output `phase` first, then `phase` + M,
+    /// `phase` + 2M, …: 0 gives the outputs of `scipy.signal.upfirdn(h, x, 1, M)` (y\[0\],
+    /// y\[M\], …); M − 1, the default, the output at every M-th input (y\[M−1\], y\[2M−1\], …:
+    /// one output per DMA block of M samples, at its end). Costs nothing per sample: it only
+    /// sets where the input count starts (see [`set_start_phase`](Decimator::set_start_phase)).
+    ///
+    /// # Errors
+    /// [`Error::StartPhaseTooLarge`] when `phase` ≥ M.
+    ///
+    /// ```
+    /// use tapline::{Decimator, Error};
+    /// // Thirds (1/3 each), decimated by 3, keeping full-rate outputs 0, 3, 6, … like upfirdn.
+    /// static THIRDS: [i16; 3] = [10923; 3];
+    /// let mut dec = Decimator::<i16, 3, 3>::new(&THIRDS)?.with_start_phase(0)?;
+    /// assert_eq!(dec.start_phase(), 0);
+    /// assert_eq!(dec.push(i16::MIN), Some(-10923)); // y[0]: −1.0 · 10923/32768, exact
+    /// assert_eq!(dec.push(300), None);
+    /// assert_eq!(dec.push(600), None);
+    /// assert_eq!(dec.push(900), Some(600)); // y[3] = 1800 · 10923/32768 = 600.02
+    /// assert_eq!(Decimator::<i16, 3, 3>::new(&THIRDS)?.with_start_phase(3).err(),
+    ///     Some(Error::StartPhaseTooLarge { phase: 3, factor: 3 }));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_start_phase(mut self, phase: usize) -> Result<Self, Error> {
+        self.set_start_phase(phase)?;
+        Ok(self)
+    }
+
+    /// Sets the start phase (see [`with_start_phase`](Decimator::with_start_phase)) and
+    /// restarts the count from it: the next input is taken as full-rate index 0, so it is the
+    /// (`phase` + 1)-th input from now that returns an output. The history, taps and saturation
+    /// count stay; [`reset`](Decimator::reset) and [`flush`](Decimator::flush) return to this
+    /// phase.
+    ///
+    /// # Errors
+    /// [`Error::StartPhaseTooLarge`] when `phase` ≥ M; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::{Decimator, Error};
+    /// static NEGATE: [i16; 1] = [i16::MIN]; // −1.0
+    /// let mut dec = Decimator::<i16, 1, 2>::new(&NEGATE)?;
+    /// assert_eq!(dec.push(1000), None); // default start phase 1: outputs 1, 3, …
+    /// assert_eq!(dec.set_start_phase(2), Err(Error::StartPhaseTooLarge { phase: 2, factor: 2 }));
+    /// dec.set_start_phase(0)?; // the next input is full-rate index 0 and is kept
+    /// assert_eq!(dec.push(i16::MIN), Some(i16::MAX)); // −1 · −1 = +1.0 saturates, counted
+    /// assert_eq!((dec.push(5), dec.push(7)), (None, Some(-7)));
+    /// assert_eq!(dec.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn set_start_phase(&mut self, phase: usize) -> Result<(), Error> {
+        self.core.set_start_phase(phase)
+    }
+
+    /// Which full-rate output (modulo M) is kept first: 0 to M − 1, M − 1 by default.
+    ///
+    /// ```
+    /// use tapline::Decimator;
+    /// static TAPS: [i16; 2] = [i16::MIN; 2];
+    /// assert_eq!(Decimator::<i16, 2, 4>::new(&TAPS)?.start_phase(), 3);
+    /// assert_eq!(Decimator::<i16, 2, 4>::new(&TAPS)?.with_start_phase(0)?.start_phase(), 0);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub const fn start_phase(&self) -> usize {
+        self.core.start_phase()
+    }
+
+    /// How many outputs [`flush`](Decimator::flush) writes now: those of the full-rate
+    /// outputs after the last input — n … n + K − 2 for n inputs and K taps, where the zero-padded
+    /// convolution of a finite signal ends — that the phase keeps. With start phase 0 the
+    /// streamed outputs plus these are `scipy.signal.upfirdn(h, x, 1, M)`'s length,
+    /// ⌊(n + K − 2)/M⌋ + 1. With no input since construction, reset or flush (n = 0) the tail
+    /// is the kept ones of K − 1 zero outputs.
+    ///
+    /// ```
+    /// use tapline::Decimator;
+    /// static TAPS: [i16; 7] = [i16::MAX; 7];
+    /// let mut dec = Decimator::<i16, 7, 3>::new(&TAPS)?.with_start_phase(0)?;
+    /// assert_eq!(dec.outputs_for(10), 4); // full-rate 0, 3, 6, 9 while streaming
+    /// dec.process(&[i16::MIN; 10], &mut [0; 4])?;
+    /// assert_eq!(dec.tail_len(), 2); // 12 and 15 of 0 … 15
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub fn tail_len(&self) -> usize {
+        self.core.tail().len(self.tap_count())
+    }
+
+    /// Ends a finite signal: writes the [`tail_len`](Decimator::tail_len) outputs that K − 1
+    /// zero inputs after the last one would give (K the tap count) to the front of `output`,
+    /// without pushing the zeros — each sums only the taps that still meet the signal — and
+    /// returns how many. Outputs are rounded, saturated and counted as [`push`](Decimator::push)
+    /// does, bit for bit (the same sums: the zero products add nothing).
+    ///
+    /// Afterwards the decimator is ready for a new signal: zero history, the count back at the
+    /// start phase, as after [`reset`](Decimator::reset), except that the saturation count
+    /// keeps its value (the tail's saturations included). Costs one output's
+    /// multiply-accumulates per tail output (at most K − 1 each) and one history clear.
+    ///
+    /// # Errors
+    /// [`Error::OutputTooShort`] when `output` is shorter than the tail; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::{Decimator, Error};
+    /// // 5 inputs, a 4-tap average by 2 from full-rate output 0: upfirdn gives
+    /// // ⌊(5 + 4 − 2)/2⌋ + 1 = 4 outputs, 3 while streaming and 1 in the tail.
+    /// static AVERAGE_4: [i16; 4] = [8192; 4];
+    /// let mut dec = Decimator::<i16, 4, 2>::new(&AVERAGE_4)?.with_start_phase(0)?;
+    /// let mut out = [0i16; 4];
+    /// assert_eq!(dec.process(&[400, 800, 1200, 1600, i16::MIN], &mut out)?, 3);
+    /// assert_eq!(dec.flush(&mut []), Err(Error::OutputTooShort { needed: 1, found: 0 }));
+    /// assert_eq!(dec.flush(&mut out[3..])?, 1);
+    /// assert_eq!(out, [100, 600, -7292, -7792]); // the last: (1600 − 32768) / 4
+    /// // A new signal starts at full-rate index 0 again.
+    /// assert_eq!(dec.push(4000), Some(1000));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
+        self.core.flush::<T, W>(self.taps.as_slice(), output)
+    }
+
+    /// Zero history, the count back at the start phase, zero saturation count; taps, start
+    /// phase and rounding stay.
     pub fn reset(&mut self) {
         self.core.reset();
     }

@@ -3,10 +3,13 @@
 //! zeros.
 
 use super::GroupDelay;
-use super::shared::{OutputStep, history_dot_strided, output_controls, phases_fit};
+use super::shared::{
+    OutputStep, Tail, history_dot_strided, output_controls, phase_output, phases_fit,
+};
 use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
+use core::num::NonZeroUsize;
 
 /// A polyphase interpolating FIR: `N` taps, interpolation factor `L` (a const: a factor of 0
 /// does not compile). Each input produces `L` outputs; output phase p uses the strided subset
@@ -26,6 +29,10 @@ use core::marker::PhantomData;
 /// * **Group delay:** (N−1)/2 *output* samples for symmetric or antisymmetric taps
 ///   ([`group_delay`](Interpolator::group_delay)).
 /// * **RAM:** the history is a `Ring` of N low-rate samples (2·N stored, mirrored), of which the newest ⌈N/L⌉ are read.
+/// * **Finite signals:** [`flush`](Interpolator::flush) writes the outputs of the zero-padded
+///   tail, N − L of them (where the convolution of the zero-stuffed signal ends), and readies
+///   the interpolator for the next signal; streamed outputs plus the tail are
+///   `scipy.signal.upfirdn(h, x, L)`, output for output and in number.
 ///
 /// ```
 /// use tapline::Interpolator;
@@ -139,6 +146,68 @@ impl<S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W>
             }
         }
         Ok(needed)
+    }
+
+    /// The tail of a finite signal: outputs at the up-sampled offsets 0, 1, … after the last
+    /// input's L outputs, up to where the full convolution ends.
+    const TAIL: Tail = Tail {
+        first: 0,
+        up: L,
+        down: NonZeroUsize::MIN,
+    };
+
+    /// How many outputs [`flush`](Interpolator::flush) writes: N − L (0 when N ≤ L). For n
+    /// inputs the stream gives n·L outputs and the tail the rest of the convolution of the
+    /// zero-stuffed signal, (n − 1)·L + N in all: `scipy.signal.upfirdn(h, x, L)`'s length.
+    /// With no input since construction, reset or flush the tail is N − L zeros. With N < L
+    /// there is no tail, and the last L − N outputs of each input lie past upfirdn's end: its
+    /// phases N … L − 1 hold no taps, so those outputs are zeros.
+    ///
+    /// ```
+    /// use tapline::Interpolator;
+    /// static TAPS: [i16; 8] = [i16::MIN; 8];
+    /// assert_eq!(Interpolator::<i16, 8, 3>::new(&TAPS)?.tail_len(), 5);
+    /// assert_eq!(Interpolator::<i16, 8, 8>::new(&TAPS)?.tail_len(), 0);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub fn tail_len(&self) -> usize {
+        Self::TAIL.len(N)
+    }
+
+    /// Ends a finite signal: writes the [`tail_len`](Interpolator::tail_len) outputs that
+    /// zero inputs after the last one would give, up to the end of the full convolution, to the
+    /// front of `output` — without pushing the zeros: each output sums only the taps of its
+    /// phase that still meet the signal — and returns how many. Rounded, saturated and counted
+    /// as [`push`](Interpolator::push) does, bit for bit (the zero products add nothing).
+    ///
+    /// Afterwards the history is zero, ready for a new signal, as after
+    /// [`reset`](Interpolator::reset), except that the saturation count keeps its value (the
+    /// tail's saturations included).
+    ///
+    /// # Errors
+    /// [`Error::OutputTooShort`] when `output` is shorter than the tail; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::{Error, Interpolator};
+    /// // Linear interpolation by 2 of a 2-sample signal: upfirdn gives (2 − 1)·2 + 3 = 5 outputs.
+    /// static LINEAR_2: [i16; 3] = [16384, 32767, 16384];
+    /// let mut up = Interpolator::<i16, 3, 2>::new(&LINEAR_2)?;
+    /// let mut out = [0i16; 5];
+    /// assert_eq!(up.process(&[1000, i16::MIN], &mut out)?, 4);
+    /// assert_eq!(up.flush(&mut []), Err(Error::OutputTooShort { needed: 1, found: 0 }));
+    /// assert_eq!(up.flush(&mut out[4..])?, 1);
+    /// assert_eq!(out, [500, 1000, -15884, -32767, -16384]); // the tail: ½ · −1.0
+    /// assert_eq!(up.push(2000), [1000, 2000]); // a new signal, from zero history
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
+        let (history, step, taps) = (&self.history, &mut self.output, self.taps.as_slice());
+        let written = Self::TAIL.fill(N, output, |from| {
+            phase_output::<S, T, W, N>(step, history, taps, from, L)
+        })?;
+        self.history.fill(S::ZERO);
+        Ok(written)
     }
 
     /// Zero history, zero saturation count; taps and rounding stay.

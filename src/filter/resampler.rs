@@ -3,7 +3,9 @@
 //! real inputs per output, never the zero products nor the outputs that would be dropped.
 
 use super::GroupDelay;
-use super::shared::{OutputStep, fill_block, history_dot_strided, output_controls, phases_fit};
+use super::shared::{
+    OutputStep, Tail, fill_block, history_dot_strided, output_controls, phase_output, phases_fit,
+};
 use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
@@ -41,6 +43,10 @@ use core::num::{NonZeroU16, NonZeroU128, NonZeroUsize};
 ///   accumulate in tap order without rounding mode or FMA; NaN/∞ propagate.
 /// * **RAM:** the ring's 2·C samples, the borrowed taps, the two factors, the phase, rounding
 ///   and counter.
+/// * **Finite signals:** [`flush`](Resampler::flush) writes the outputs of the zero-padded
+///   tail (up to where the convolution of the zero-stuffed signal ends) and readies the
+///   resampler for the next signal; streamed outputs plus the tail are
+///   `scipy.signal.upfirdn(h, x, L, M)`, output for output and in number.
 ///
 /// Per-sample ([`push`](Resampler::push)) and block ([`process`](Resampler::process)) calls
 /// give the same outputs for any split: the phase carries across calls.
@@ -263,6 +269,75 @@ impl<S: MulAcc<T, W>, const C: usize, T: Sample, W> Resampler<'_, S, C, T, W> {
     pub fn max_outputs_per_input(&self) -> usize {
         let down = NonZeroUsize::from(self.down);
         (self.up + down.get() - 1) / down
+    }
+
+    /// The tail of the signal so far: outputs at up-sampled offsets `next`, `next` + M, … from
+    /// the next input's up-sampled position.
+    fn tail(&self) -> Tail {
+        Tail {
+            first: self.next,
+            up: self.up,
+            down: NonZeroUsize::from(self.down),
+        }
+    }
+
+    /// How many outputs [`flush`](Resampler::flush) writes now: the outputs j whose
+    /// up-sampled index jM lies past the last input's L up-sampled samples but within the full
+    /// convolution, jM ≤ (n − 1)·L + K − 1 for n inputs and K taps. The stream's outputs plus
+    /// these are `scipy.signal.upfirdn(h, x, L, M)`'s length, ⌊((n − 1)·L + K − 1)/M⌋ + 1.
+    /// With no input since construction, reset or flush (n = 0) the tail is that many zeros
+    /// when K > L, none otherwise. With K < L the stream's last outputs can already lie past
+    /// upfirdn's end (phases K … L − 1 hold no taps, so they are zeros) and the tail is empty.
+    ///
+    /// ```
+    /// use tapline::Resampler;
+    /// static TAPS: [i16; 24] = [1365; 24];
+    /// let mut rs = Resampler::<i16, 8>::new(&TAPS, 3, 2)?;
+    /// assert_eq!(rs.process(&[i16::MIN; 5], &mut [0; 8])?, 8); // 2j < 15: j = 0 … 7
+    /// assert_eq!(rs.tail_len(), 10); // 2j ≤ 4·3 + 23 = 35: j = 8 … 17, upfirdn's 18 in all
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub fn tail_len(&self) -> usize {
+        self.tail().len(self.taps.len())
+    }
+
+    /// Ends a finite signal: writes the [`tail_len`](Resampler::tail_len) outputs that zero
+    /// inputs after the last one would give, up to the end of the full convolution, to the
+    /// front of `output` — without pushing the zeros: each output sums only the taps of its
+    /// phase that still meet the signal — and returns how many. Rounded, saturated and counted
+    /// as [`push`](Resampler::push) does, bit for bit (the zero products add nothing).
+    ///
+    /// Afterwards the resampler is ready for a new signal: zero history, phase 0 (the next
+    /// input produces y\[0\]), as after [`reset`](Resampler::reset), except that the
+    /// saturation count keeps its value (the tail's saturations included).
+    ///
+    /// # Errors
+    /// [`Error::OutputTooShort`] when `output` is shorter than the tail; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::{Error, Resampler};
+    /// // Rate × 3/2 of a 2-sample signal, linear-interpolation taps: upfirdn gives
+    /// // ⌊(3 + 4)/2⌋ + 1 = 4 outputs, 3 while streaming and 1 in the tail.
+    /// static LINEAR_3: [i16; 5] = [10923, 21845, 32767, 21845, 10923];
+    /// let mut rs = Resampler::<i16, 2>::new(&LINEAR_3, 3, 2)?;
+    /// let mut out = [0i16; 4];
+    /// assert_eq!(rs.process(&[3000, i16::MIN], &mut out)?, 3);
+    /// assert_eq!(rs.flush(&mut []), Err(Error::OutputTooShort { needed: 1, found: 0 }));
+    /// assert_eq!(rs.flush(&mut out[3..])?, 1);
+    /// assert_eq!(out, [1000, 3000, -20845, -21845]); // the tail: ⅔ · −1.0
+    /// assert_eq!(rs.outputs_for(1), 2); // a new signal: y[0] again from its first input
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
+        let tail = self.tail();
+        let (history, step, taps) = (&self.history, &mut self.output, self.taps);
+        let written = tail.fill(taps.len(), output, |from| {
+            phase_output::<S, T, W, C>(step, history, taps, from, tail.up)
+        })?;
+        self.history.fill(S::ZERO);
+        self.next = 0;
+        Ok(written)
     }
 
     /// Zero history, phase 0 (the next input produces y\[0\] again), zero saturation count;

@@ -167,6 +167,27 @@ pub(crate) fn history_dot_strided<S: MulAcc<T, W>, T: Sample, W, const N: usize>
     dot_reversed_strided::<S, T, W>(acc, taps, tap_step, window, x_step)
 }
 
+/// One output of a polyphase structure: the taps `from`, `from + up`, … against the newest
+/// inputs, finished (rounded, saturated, counted) by `step`.
+#[inline(always)]
+pub(crate) fn phase_output<S: MulAcc<T, W>, T: Sample, W, const N: usize>(
+    step: &mut OutputStep,
+    history: &Ring<S, N>,
+    taps: &[T],
+    from: usize,
+    up: usize,
+) -> S {
+    let phase = taps.get(from..).unwrap_or(&[]);
+    step.finish::<S, T, W>(history_dot_strided::<S, T, W, N>(
+        S::ACC_ZERO,
+        history,
+        phase,
+        up,
+        0,
+        1,
+    ))
+}
+
 /// Whether each phase of `taps` taken with stride `step` (the taps p, p + step, p + 2·step, …
 /// for every p < step) fits the accumulator for any full-range input
 /// ([`MulAcc::accumulator_fits`]): a polyphase structure sums one phase per output. `N` bounds
@@ -233,6 +254,12 @@ pub(crate) struct Phase<const M: usize> {
 }
 
 impl<const M: usize> Phase<M> {
+    /// A phase that has already counted `count` inputs of its group (0 ≤ count < M): the first
+    /// group completes after M − count inputs.
+    pub(crate) const fn counted(count: usize) -> Self {
+        Phase { count }
+    }
+
     /// Counts one input; `true` when it completes a group of `M`.
     #[inline(always)]
     pub(crate) fn tick(&mut self) -> bool {
@@ -253,6 +280,55 @@ impl<const M: usize> Phase<M> {
     /// Inputs taken since the last output (0 ≤ · < M).
     pub(crate) const fn position(&self) -> usize {
         self.count
+    }
+}
+
+/// Where the zero-padded tail of a finite signal lies for a structure that up-samples by `up`
+/// and keeps every `down`-th up-sampled output: offsets in up-sampled samples counted from the
+/// up-sampled position of the next input, `first`, `first + down`, … below `K − up` (K the tap
+/// count). That is where the full convolution of the zero-stuffed signal ends —
+/// `scipy.signal.upfirdn`'s output length, ⌊((n−1)·up + K − 1)/down⌋ + 1 outputs for n inputs.
+/// The output at offset t sums the taps t + up, t + 2·up, … against the newest inputs.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Tail {
+    pub(crate) first: usize,
+    pub(crate) up: usize,
+    pub(crate) down: core::num::NonZeroUsize,
+}
+
+impl Tail {
+    /// How many outputs the tail of a signal filtered by `taps` taps holds.
+    pub(crate) fn len(self, taps: usize) -> usize {
+        let end = taps.saturating_sub(self.up);
+        if end <= self.first {
+            0
+        } else {
+            (end - self.first - 1) / self.down + 1
+        }
+    }
+
+    /// Writes the tail's outputs to the front of `output`, `value(taps_from)` computing the one
+    /// whose taps start at `taps_from` (its offset + `up`), after checking once that `output`
+    /// holds them all. Returns how many were written.
+    pub(crate) fn fill<Y>(
+        self,
+        taps: usize,
+        output: &mut [Y],
+        mut value: impl FnMut(usize) -> Y,
+    ) -> Result<usize, Error> {
+        let needed = self.len(taps);
+        if output.len() < needed {
+            return Err(Error::OutputTooShort {
+                needed,
+                found: output.len(),
+            });
+        }
+        let mut from = self.first.saturating_add(self.up);
+        for slot in output.iter_mut().take(needed) {
+            *slot = value(from);
+            from = from.saturating_add(self.down.get());
+        }
+        Ok(needed)
     }
 }
 

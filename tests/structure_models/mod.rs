@@ -70,6 +70,35 @@ pub fn resample_finished(
         .collect()
 }
 
+/// Exact model of a whole finite signal through `scipy.signal.upfirdn(h, x, l, m)`, written
+/// from its definition, with a start phase: the up-sampled indices i = phase, phase + m, …
+/// below (n − 1)·l + K (where the full convolution of the zero-stuffed x, without its trailing
+/// zeros, ends; for n = 0, below K − l), each y = Σ_k h[k]·u[i − k] in `i128` with u[t·l] =
+/// x[t] and zero elsewhere, then one rounding (÷2^frac) and saturation to `bits`. A
+/// decimator from start phase p is (l, m, phase) = (1, M, p), an interpolator (L, 1, 0), a
+/// resampler (L, M, 0).
+pub fn upfirdn_finished(
+    h: &[i64],
+    x: &[i64],
+    (l, m, phase): (usize, usize, usize),
+    frac: u32,
+    bits: u32,
+    mode: Rounding,
+) -> Vec<(i128, bool)> {
+    let end = (x.len() * l + h.len()) as i64 - l as i64;
+    (phase..)
+        .step_by(m)
+        .take_while(|&i| (i as i64) < end)
+        .map(|i| {
+            let acc: i128 = (0..h.len().min(i + 1))
+                .filter(|&k| (i - k) % l == 0 && (i - k) / l < x.len())
+                .map(|k| i128::from(h[k]) * i128::from(x[(i - k) / l]))
+                .sum();
+            finish_exact(acc, frac, bits, mode)
+        })
+        .collect()
+}
+
 /// Exact model of a fixed-point FIR: the exact sums of `common::fir_exact`, each finished with
 /// one rounding (÷2^frac) and saturation to `bits`.
 pub fn fir_finished(

@@ -26,6 +26,11 @@ for this test; every expected value is computed here by scipy/numpy from those s
     prototype taps scipy.signal.firwin(K, 1/max(L, M)) * L (tap counts K that are and are not
     multiples of L) and an invented input (two tones and a step); the first ceil(len(x)*L/M)
     outputs, those a stream of len(x) inputs produces.
+  * whole signals (own section, WHOLE_*): scipy.signal.upfirdn's entire output, zero-padded tail
+    included, for a decimator by M from every start phase p (p = 0: upfirdn(h, x, 1, M); p > 0:
+    upfirdn(h, x)[p::M], the full-rate output from p), an interpolator by L (upfirdn(h, x, L))
+    and a resampler by L/M (upfirdn(h, x, L, M)); taps scipy.signal.firwin(K, 1/max(L, M)) * L,
+    input lengths that are not multiples of the factors, some shorter than the taps.
 
 Usage: python3 tests/vectors/generate_scipy.py [--allow-other-versions] [--out DIR]
 """
@@ -141,6 +146,76 @@ def resample_input(n):
     i = np.arange(n, dtype=np.float64)
     return (0.5 * np.sin(2 * np.pi * 0.03 * i) + 0.25 * np.cos(2 * np.pi * 0.11 * i + 0.4)
             + 0.2 * (i >= 20))
+
+
+# ---------------------------------------------------------------------------------------------
+# Whole signals: streamed outputs plus the flushed tail against upfirdn's entire output.
+# ---------------------------------------------------------------------------------------------
+
+# Invented. Decimators (M, K, n): every start phase 0..M-1 is generated for each. K = 1 has no
+# tail; n = 3 < K leaves a tail longer than the signal.
+WHOLE_DECIMATE = [(3, 10, 37), (4, 7, 37), (5, 13, 3), (2, 1, 5)]
+# Interpolators (L, K, n): K = 3 < L = 5 has no tail; n = 1 is a single sample.
+WHOLE_INTERPOLATE = [(3, 10, 37), (4, 16, 11), (2, 7, 1), (5, 3, 6)]
+# Resamplers (L, M, K, n).
+# Tap counts other than the RESAMPLE section's, so no prototype is stored twice.
+WHOLE_RESAMPLE = [(3, 2, 22, 37), (2, 3, 27, 37), (5, 4, 43, 11), (1, 3, 29, 37), (4, 1, 26, 2),
+                  (2, 2, 11, 7), (3, 5, 8, 1)]
+
+
+def whole_input(n):
+    """Invented input: two tones and a step at n = 5, within (-1, 1)."""
+    i = np.arange(n, dtype=np.float64)
+    return (0.55 * np.sin(2 * np.pi * 0.07 * i) - 0.3 * np.cos(2 * np.pi * 0.19 * i + 1.1)
+            + 0.12 * (i >= 5))
+
+
+def whole_taps(up, down, k):
+    return signal.firwin(k, 1.0 / max(up, down)) * up if k > 1 else np.array([float(up)])
+
+
+def whole_cases():
+    """(up, down, taps, input, [upfirdn's entire output per start phase]) for every WHOLE_* case:
+    a decimator has one output per start phase 0..M-1, the others one (phase 0)."""
+    out = []
+    for m, k, n in WHOLE_DECIMATE:
+        h, x = whole_taps(1, m, k), whole_input(n)
+        full = signal.upfirdn(h, x)
+        phases = [signal.upfirdn(h, x, 1, m)] + [full[p::m] for p in range(1, m)]
+        assert len(phases[0]) == len(full[::m]), (m, k, n)
+        out.append((1, m, h, x, phases))
+    for up, k, n in WHOLE_INTERPOLATE:
+        h, x = whole_taps(up, 1, k), whole_input(n)
+        out.append((up, 1, h, x, [signal.upfirdn(h, x, up)]))
+    for up, down, k, n in WHOLE_RESAMPLE:
+        h, x = whole_taps(up, down, k), whole_input(n)
+        out.append((up, down, h, x, [signal.upfirdn(h, x, up, down)]))
+    return out
+
+
+def emit_whole(w):
+    longest = max(len(x) for *_, x, _ in whole_cases())
+    x_all = whole_input(longest)
+    w("/// The invented input of every WHOLE case (whole_input), each taking its first `len`.")
+    w(f"const WHOLE_INPUT: &[f64] = {rs_list(x_all, indent='    ')};")
+    w("/// Whole signals: upfirdn's entire output (the zero-padded tail included). Decimators have")
+    w("/// up = 1 and one output per start phase p (upfirdn(h, x, 1, M) for p = 0, upfirdn(h, x)[p::M]")
+    w("/// otherwise); interpolators down = 1 and resamplers one output each (phase 0); taps")
+    w("/// firwin(K, 1/max(up, down)) * up, input the first `len` samples of WHOLE_INPUT.")
+    w("const WHOLE: &[WholeCase] = &[")
+    for up, down, h, x, phases in whole_cases():
+        w("    WholeCase {")
+        w(f"        up: {up},")
+        w(f"        down: {down},")
+        w(f"        taps: {rs_list(h, indent='            ')},")
+        assert np.array_equal(x, x_all[:len(x)])
+        w(f"        len: {len(x)},")
+        w("        outputs: &[")
+        for y in phases:
+            w(f"            {rs_list(y, indent='                ')},")
+        w("        ],")
+        w("    },")
+    w("];")
 
 
 def firwin_for(kind, numtaps, cutoff, window, fs):
@@ -322,6 +397,9 @@ def main():
         w(f"        output: {rs_list(y[:count], indent='            ')},")
         w("    },")
     w("];")
+
+    w("")
+    emit_whole(w)
 
     with open(out_path, "w", encoding="utf-8", newline="\n") as fh:
         fh.write("\n".join(o) + "\n")

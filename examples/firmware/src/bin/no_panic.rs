@@ -114,6 +114,7 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
             black_box(dec.push(black_box(block_i16[3])));
             let mut out = [0i16; 16];
             let _ = dec.process(&block_i16[..len], &mut out);
+            let _ = black_box(dec.flush(&mut out));
             black_box(out);
         }
         if let Ok(mut multi) =
@@ -123,9 +124,15 @@ fn exercise(seed: i32, len: usize, rounding: Rounding) {
         }
     }
     if let Ok(mut dec) = DecimatorUpTo::<i16, 32, 4>::with_taps(taps) {
+        // A start phase the optimiser cannot see (refused when ≥ 4).
+        let _ = dec.set_start_phase(black_box(len % 6));
         black_box(dec.push(black_box(block_i16[4])));
         black_box(dec.process_in_place(&mut block_i16[..len]));
         let _ = dec.set_taps(black_box(&Q15_TAPS[..]));
+        let mut tail = [0i16; 8];
+        black_box(dec.tail_len());
+        let _ = black_box(dec.flush(tail.get_mut(..black_box(len % 9)).unwrap_or_default()));
+        black_box(tail);
     }
     if let Ok(mut multi) = MultiChannelFirUpTo::<i16, 32, 4>::with_taps(taps) {
         black_box(multi.push(black_box([block_i16[5]; 4])));
@@ -230,16 +237,24 @@ fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rou
     if let Ok(mut f) = LinearPhaseFir::<i32, 7>::new(black_box(&Q31_TAPS)) {
         f.process_in_place(&mut b32[..len]);
     }
-    if let Ok(mut f) = Decimator::<i16, 13, 4>::new(black_box(&Q15_TAPS)) {
-        black_box(f.push(b16[1]));
-        let mut out = [0i16; 64];
-        let _ = black_box(f.process(&b16[..len], &mut out));
-        black_box(f.process_in_place(&mut b16[..len]));
+    if let Ok(f) = Decimator::<i16, 13, 4>::new(black_box(&Q15_TAPS)) {
+        if let Ok(mut f) = f.with_start_phase(black_box(len % 5)) {
+            black_box(f.push(b16[1]));
+            let mut out = [0i16; 64];
+            let _ = black_box(f.process(&b16[..len], &mut out));
+            black_box(f.process_in_place(&mut b16[..len]));
+            black_box((f.start_phase(), f.tail_len()));
+            let _ = black_box(f.flush(out.get_mut(..black_box(len % 5)).unwrap_or_default()));
+            black_box(out);
+        }
     }
     if let Ok(mut f) = Interpolator::<i16, 13, 3>::new(black_box(&Q15_TAPS)) {
         black_box(f.push(b16[2]));
         let mut out = [0i16; 192];
         let _ = black_box(f.process(&b16[..len], &mut out));
+        black_box(f.tail_len());
+        let _ = black_box(f.flush(out.get_mut(..black_box(len % 12)).unwrap_or_default()));
+        black_box(out);
     }
     // Factors the optimiser cannot see: the phase loop and outputs_for must stay panic-free
     // for any pair the constructor accepts.
@@ -253,6 +268,8 @@ fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rou
         black_box(f.outputs_for(black_box(len)));
         black_box(f.max_outputs_per_input());
         black_box(f.group_delay());
+        black_box(f.tail_len());
+        let _ = black_box(f.flush(out.get_mut(..black_box(len % 6)).unwrap_or_default()));
         black_box(f.clear_saturations());
         f.reset();
     }
@@ -261,11 +278,13 @@ fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rou
     {
         let mut out = [0i32; 64];
         let _ = black_box(f.process(&b32[..len], &mut out));
+        let _ = black_box(f.flush(&mut out));
     }
     if let Ok(mut f) = Resampler::<f32, 9>::new(black_box(&F32_TAPS), up, black_box(2)) {
         let bf: [f32; 64] = core::array::from_fn(|i| f32::from(b16[i]));
         let mut out = [0f32; 192];
         let _ = black_box(f.process(&bf[..len], &mut out));
+        let _ = black_box(f.flush(&mut out));
     }
     if let Ok(mut f) = HalfBandDecimator::<i16, 7>::new(black_box(&HALF_BAND)) {
         black_box(f.push(b16[3]));
