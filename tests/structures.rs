@@ -1101,7 +1101,7 @@ fn whole_decimators<S, T, W, const N: usize, const M: usize>(
     phase: usize,
     run: &WholeRun<'_>,
 ) where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
@@ -1131,7 +1131,7 @@ fn whole_decimators<S, T, W, const N: usize, const M: usize>(
 
 fn whole_interpolator<S, T, W, const N: usize, const L: usize>(h: &[i64], run: &WholeRun<'_>)
 where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
@@ -1143,7 +1143,7 @@ where
 
 fn whole_resampler<S, T, W>(h: &[i64], (l, m): (usize, usize), run: &WholeRun<'_>)
 where
-    S: MulAcc<T, W> + Raw,
+    S: MulAcc<T, W> + FixedPoint + Raw,
     T: Sample + Raw,
     W: RuntimeChecked,
 {
