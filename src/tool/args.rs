@@ -33,7 +33,8 @@ enum Command {
     /// The whole job: design taps from a spec, prove their headroom, replay a capture through
     /// them, and write taps.rs, response.svg, report.txt and filtered.csv into one directory.
     /// Exit 0 when the taps are safe and the replay stayed within the error bound, 1 otherwise,
-    /// 2 on bad input (and then no file is written).
+    /// 2 on bad input (and then no file is written). The files appear together or not at all;
+    /// --filtered thins filtered.csv or leaves it out.
     Prepare(PrepareArgs),
     /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, by a Kaiser
     /// window or equiripple, and report the length, group delay, measured ripple and
