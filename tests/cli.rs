@@ -1045,25 +1045,9 @@ fn replay_bad_captures_fail_with_place_and_write_nothing() {
     ];
     for (name, text, message) in cases {
         let dir = scratch();
-        write(dir.path(), "taps.txt", "16384 16384\n");
+        write(dir.path(), "taps.txt", TAPS);
         write(dir.path(), name, text);
-        let out = tool(
-            &[
-                "replay",
-                name,
-                "--taps",
-                "taps.txt",
-                "--column",
-                "2",
-                "--adc-bits",
-                "12",
-                "--align",
-                "right",
-                "--out",
-                "out.csv",
-            ],
-            dir.path(),
-        );
+        let out = tool(&replay_args(name, "out.csv"), dir.path());
         assert_bad_input(&out, message, name);
         assert_files(dir.path(), &["taps.txt", name]);
     }
@@ -1447,26 +1431,7 @@ fn silo_capture_codes() -> Vec<i64> {
 #[test]
 fn prepare_writes_the_four_files_of_the_job() {
     let dir = scratch();
-    let spec = repo().join(SILO_SPEC).display().to_string();
-    let capture = repo()
-        .join("examples/tool/silo_capture.csv")
-        .display()
-        .to_string();
-    let out = tool(
-        &[
-            "--json",
-            "prepare",
-            "--spec",
-            &spec,
-            "--capture",
-            &capture,
-            "--channels",
-            "adc_code",
-            "--out-dir",
-            "job",
-        ],
-        dir.path(),
-    );
+    let out = prepare_silo(dir.path(), "job", &[]);
     assert_eq!(status(&out), 0, "{}", stderr(&out));
     assert_eq!(stderr(&out), "", "no progress bar on a pipe");
     let v = json(&out);

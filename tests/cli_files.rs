@@ -13,20 +13,7 @@ use std::process::{Child, Command, Output, Stdio};
 use std::time::{Duration, Instant};
 use tool_run::*;
 
-/// A two-tap Q15 table and a capture of 12-bit right-aligned codes in column 2, as `replay`
-/// reads them with [`REPLAY`]'s flags.
-const TAPS: &str = "16384 16384\n";
 const CAPTURE: &str = "0,1\n1,-7\n2,300\n3,-2048\n4,2047\n";
-const REPLAY: [&str; 8] = [
-    "--taps",
-    "taps.txt",
-    "--column",
-    "2",
-    "--adc-bits",
-    "12",
-    "--align",
-    "right",
-];
 
 fn replay_dir() -> tempfile::TempDir {
     let dir = scratch();
@@ -35,26 +22,8 @@ fn replay_dir() -> tempfile::TempDir {
     dir
 }
 
-fn replay_args<'a>(capture: &'a str, out: &'a str) -> Vec<&'a str> {
-    let mut args = vec!["replay", capture];
-    args.extend_from_slice(&REPLAY);
-    args.extend_from_slice(&["--out", out]);
-    args
-}
-
 fn read(path: &Path) -> String {
     fs::read_to_string(path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
-}
-
-fn silo_spec() -> String {
-    repo().join(SILO_SPEC).display().to_string()
-}
-
-fn silo_capture() -> String {
-    repo()
-        .join("examples/tool/silo_capture.csv")
-        .display()
-        .to_string()
 }
 
 /// Runs the tool but gives up after `seconds` (a FIFO that hangs it, an input it reads without
@@ -134,7 +103,7 @@ fn prepare_and_emit_refuse_to_replace_their_inputs() {
     let capture = fs::read(silo_capture()).unwrap_or_else(|e| panic!("{e}"));
     fs::create_dir(d.join("job")).unwrap_or_else(|e| panic!("{e}"));
     fs::write(d.join("job/filtered.csv"), &capture).unwrap_or_else(|e| panic!("{e}"));
-    let spec = silo_spec();
+    let spec = silo_spec_path();
     let run = tool(
         &[
             "prepare",
@@ -175,21 +144,7 @@ fn prepare_writes_all_four_files_or_none() {
     let d = dir.path();
     // report.txt cannot be renamed into place: a directory holds its name.
     fs::create_dir_all(d.join("job/report.txt")).unwrap_or_else(|e| panic!("{e}"));
-    let (spec, capture) = (silo_spec(), silo_capture());
-    let run = tool(
-        &[
-            "prepare",
-            "--spec",
-            &spec,
-            "--capture",
-            &capture,
-            "--channels",
-            "adc_code",
-            "--out-dir",
-            "job",
-        ],
-        d,
-    );
+    let run = prepare_silo(d, "job", &[]);
     assert_bad_input(&run, "report.txt: could not write", "prepare");
     assert_files(&d.join("job"), &["report.txt"]);
     assert_files(&d.join("job/report.txt"), &[]);
@@ -208,7 +163,7 @@ fn a_failed_final_rename_leaves_no_partial_file() {
 
 #[test]
 fn a_bad_capture_leaves_none_of_the_directories_prepare_made() {
-    let spec = silo_spec();
+    let spec = silo_spec_path();
     // Refused at the header (before any output), and at row 3 (while filtered.csv streams).
     let cases = [
         ("time_s,load\n0,1\n", "expected a column named \"adc_code\""),
@@ -314,7 +269,7 @@ fn an_interrupted_replay_or_prepare_leaves_nothing_and_exits_130_or_143() {
         assert_eq!(exit, Some(code), "replay, kill {signal}");
         assert_files(d, &["big.csv", "big_named.csv", "taps.txt"]);
 
-        let spec = silo_spec();
+        let spec = silo_spec_path();
         let args = [
             "prepare",
             "--spec",
@@ -344,7 +299,7 @@ fn inputs_that_are_not_regular_files_are_refused_before_any_output() {
     fs::create_dir(d.join("folder")).unwrap_or_else(|e| panic!("{e}"));
     mkfifo(&d.join("pipe"));
     let listing = ["capture.csv", "folder", "pipe", "taps.txt"];
-    let spec = silo_spec();
+    let spec = silo_spec_path();
     let cases: [(&str, &str, &str); 3] = [
         ("folder", "folder: is a directory", "a directory"),
         ("pipe", "pipe: is not a regular file (a FIFO)", "a FIFO"),
@@ -463,26 +418,6 @@ fn a_line_beyond_64_kib_is_refused_with_its_file_and_line() {
 
 // ---- point 10: prepare can thin or skip filtered.csv -----------------------------------------
 
-fn prepare_silo(d: &Path, out_dir: &str, filtered: Option<&str>) -> Output {
-    let (spec, capture) = (silo_spec(), silo_capture());
-    let mut args = vec![
-        "--json",
-        "prepare",
-        "--spec",
-        &spec,
-        "--capture",
-        &capture,
-        "--channels",
-        "adc_code",
-        "--out-dir",
-        out_dir,
-    ];
-    if let Some(f) = filtered {
-        args.extend_from_slice(&["--filtered", f]);
-    }
-    tool(&args, d)
-}
-
 /// The rows of a filtered.csv: the sample index and the error (last column).
 fn rows(text: &str) -> Vec<(u64, f64, String)> {
     text.lines()
@@ -503,14 +438,14 @@ fn rows(text: &str) -> Vec<(u64, f64, String)> {
 fn prepare_can_skip_or_thin_filtered_csv() {
     let dir = scratch();
     let d = dir.path();
-    let all = prepare_silo(d, "all", None);
+    let all = prepare_silo(d, "all", &[]);
     assert_eq!(status(&all), 0, "{}", stderr(&all));
     let full = read(&d.join("all/filtered.csv"));
     let every = rows(&full);
     assert_eq!(every.len(), 2000);
 
     // None: three files, the report says why, the figures are those of the full run.
-    let none = prepare_silo(d, "none", Some("none"));
+    let none = prepare_silo(d, "none", &["--filtered", "none"]);
     assert_eq!(status(&none), 0, "{}", stderr(&none));
     assert_files(&d.join("none"), &["report.txt", "response.svg", "taps.rs"]);
     assert!(read(&d.join("none/report.txt")).contains("filtered.csv not written"));
@@ -520,7 +455,7 @@ fn prepare_can_skip_or_thin_filtered_csv() {
     assert!(n["files"].get("filtered.csv").is_none(), "{}", n["files"]);
 
     // One row in 7: samples 0, 7, 14, ..., each as the full file has it.
-    let thin = prepare_silo(d, "thin", Some("every=7"));
+    let thin = prepare_silo(d, "thin", &["--filtered", "every=7"]);
     assert_eq!(status(&thin), 0, "{}", stderr(&thin));
     let text = read(&d.join("thin/filtered.csv"));
     assert_eq!(text.lines().next(), full.lines().next(), "header");
@@ -532,7 +467,7 @@ fn prepare_can_skip_or_thin_filtered_csv() {
     assert!(read(&d.join("thin/report.txt")).contains("1 row in 7"));
 
     // Only the rows whose error exceeds 0.4 LSB: exactly those of the full file.
-    let above = prepare_silo(d, "above", Some("error-above=0.4"));
+    let above = prepare_silo(d, "above", &["--filtered", "error-above=0.4"]);
     assert_eq!(status(&above), 0, "{}", stderr(&above));
     let got = rows(&read(&d.join("above/filtered.csv")));
     let expected: Vec<&(u64, f64, String)> = every.iter().filter(|r| r.1.abs() > 0.4).collect();
@@ -540,7 +475,7 @@ fn prepare_can_skip_or_thin_filtered_csv() {
     assert_eq!(got.iter().collect::<Vec<_>>(), expected);
 
     for bad in ["every=0", "every=x", "error-above=-1", "some"] {
-        let run = prepare_silo(d, "bad", Some(bad));
+        let run = prepare_silo(d, "bad", &["--filtered", bad]);
         assert_eq!(status(&run), 2, "--filtered {bad}");
         assert!(!d.join("bad").exists(), "--filtered {bad}");
     }

@@ -14,6 +14,59 @@ pub fn repo() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
 }
 
+/// A two-tap Q15 table (1/2, 1/2), and the flags with which `replay` runs it on 12-bit
+/// right-aligned codes in column 2 of a capture.
+pub const TAPS: &str = "16384 16384\n";
+pub const REPLAY: [&str; 8] = [
+    "--taps",
+    "taps.txt",
+    "--column",
+    "2",
+    "--adc-bits",
+    "12",
+    "--align",
+    "right",
+];
+
+/// `replay CAPTURE` with [`TAPS`] (written as taps.txt) and [`REPLAY`], output to `out`.
+pub fn replay_args<'a>(capture: &'a str, out: &'a str) -> Vec<&'a str> {
+    let mut args = vec!["replay", capture];
+    args.extend_from_slice(&REPLAY);
+    args.extend_from_slice(&["--out", out]);
+    args
+}
+
+pub fn silo_spec_path() -> String {
+    repo().join(SILO_SPEC).display().to_string()
+}
+
+/// The invented silo capture of the examples (columns `time_s`, `adc_code`).
+pub fn silo_capture() -> String {
+    repo()
+        .join("examples/tool/silo_capture.csv")
+        .display()
+        .to_string()
+}
+
+/// `prepare` of the silo spec and capture (channel `adc_code`, JSON) into `out_dir`, in `dir`.
+pub fn prepare_silo(dir: &Path, out_dir: &str, extra: &[&str]) -> Output {
+    let (spec, capture) = (silo_spec_path(), silo_capture());
+    let mut args = vec![
+        "--json",
+        "prepare",
+        "--spec",
+        &spec,
+        "--capture",
+        &capture,
+        "--channels",
+        "adc_code",
+        "--out-dir",
+        out_dir,
+    ];
+    args.extend_from_slice(extra);
+    tool(&args, dir)
+}
+
 pub fn tool(args: &[&str], dir: &Path) -> Output {
     let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
         .args(args)
