@@ -463,20 +463,12 @@ pub fn run(r: &Request, outputs: &mut Outputs) -> Result<(Replayed, Option<Strea
     let float = r.format == Format::F32;
     let mut feed = |step: &mut Step| -> Result<(), Failure> {
         let mut row: Vec<f64> = Vec::with_capacity(channels.len());
+        // Per channel: input, output, reference, error.
+        let mut results: Vec<(f64, f64, f64, f64)> = Vec::with_capacity(channels.len());
         let mut line = String::new();
         while capture.next_row(&mut row)? {
-            // Whether this row goes to the file: known now for every n-th, after the row's
-            // errors for a threshold.
-            let mut keep = match r.rows {
-                Rows::All | Rows::ErrorAbove(_) => out.is_some(),
-                Rows::None => false,
-                Rows::Every(n) => out.is_some() && samples % n.max(1) == 0,
-            };
+            results.clear();
             let mut notable = false;
-            line.clear();
-            if keep {
-                let _ = write!(line, "{samples}");
-            }
             for (k, &x) in row.iter().enumerate() {
                 let (y, saturated, reference) = step(k, x);
                 let Some(c) = channels.get_mut(k) else {
@@ -494,18 +486,25 @@ pub fn run(r: &Request, outputs: &mut Outputs) -> Result<(Replayed, Option<Strea
                 if let Rows::ErrorAbove(limit) = r.rows {
                     notable |= saturated || error.abs() > limit;
                 }
-                if keep {
+                results.push((x, y, reference, error));
+            }
+            let keep = match r.rows {
+                Rows::All => true,
+                Rows::None => false,
+                Rows::Every(n) => samples % n.max(1) == 0,
+                Rows::ErrorAbove(_) => notable,
+            };
+            if let (Some(w), true) = (&mut out, keep) {
+                // Only the rows written are formatted: the text costs more than the filter.
+                line.clear();
+                let _ = write!(line, "{samples}");
+                for &(x, y, reference, error) in &results {
                     if float {
                         let _ = write!(line, ",{x},{y},{reference},{error:.3e}");
                     } else {
                         let _ = write!(line, ",{x},{y},{reference:.6},{error:.6}");
                     }
                 }
-            }
-            if let Rows::ErrorAbove(_) = r.rows {
-                keep &= notable;
-            }
-            if let (Some(w), true) = (&mut out, keep) {
                 w.write_line(&line)?;
             }
             samples += 1;
