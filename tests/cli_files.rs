@@ -148,6 +148,30 @@ fn prepare_writes_all_four_files_or_none() {
     assert_bad_input(&run, "report.txt: could not write", "prepare");
     assert_files(&d.join("job"), &["report.txt"]);
     assert_files(&d.join("job/report.txt"), &[]);
+
+    // Over the files of an earlier run: a failed commit leaves them as they were.
+    let first = prepare_silo(d, "again", &["--name", "FIRST"]);
+    assert_eq!(status(&first), 0, "{}", stderr(&first));
+    let job = d.join("again");
+    let before: Vec<Vec<u8>> = ["filtered.csv", "response.svg", "taps.rs"]
+        .iter()
+        .map(|f| fs::read(job.join(f)).unwrap_or_default())
+        .collect();
+    assert!(String::from_utf8_lossy(&before[2]).contains("FIRST"));
+    fs::remove_file(job.join("report.txt")).unwrap_or_else(|e| panic!("{e}"));
+    fs::create_dir(job.join("report.txt")).unwrap_or_else(|e| panic!("{e}"));
+    // Every other row, so that filtered.csv would differ too.
+    let run = prepare_silo(d, "again", &["--name", "SECOND", "--filtered", "every=2"]);
+    assert_bad_input(&run, "report.txt: could not write", "prepare again");
+    assert_files(
+        &job,
+        &["filtered.csv", "report.txt", "response.svg", "taps.rs"],
+    );
+    let after: Vec<Vec<u8>> = ["filtered.csv", "response.svg", "taps.rs"]
+        .iter()
+        .map(|f| fs::read(job.join(f)).unwrap_or_default())
+        .collect();
+    assert!(after == before, "the earlier run's files changed");
 }
 
 #[test]

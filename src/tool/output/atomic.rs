@@ -165,18 +165,8 @@ impl Outputs {
     /// and returns the file and its index among the staged.
     fn stage(&mut self, target: &Path) -> Result<(fs::File, usize), Failure> {
         self.check(target)?;
-        let name = target
-            .file_name()
-            .ok_or_else(|| Failure::file(target, "expected a file name, found a directory"))?;
+        let temp = hidden(target, "partial")?;
         self.make_directory()?;
-        let dir = match target.parent() {
-            Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-            _ => PathBuf::from("."),
-        };
-        let mut temp_name = std::ffi::OsString::from(".");
-        temp_name.push(name);
-        temp_name.push(format!(".partial-{}", std::process::id()));
-        let temp = dir.join(temp_name);
         let mut p = pending();
         p.staged.push(Staged {
             temp: temp.clone(),
@@ -225,24 +215,48 @@ impl Outputs {
     }
 
     /// Renames every staged file over its target, all under the lock the interrupt handler
-    /// takes. If one rename fails, the targets already renamed by this commit are removed and
-    /// the rest unstaged, so that none of the command's files is left.
+    /// takes. A file a target replaces is first kept under a second name (a hard link,
+    /// `.NAME.previous-PID`); if one rename fails, the targets this commit already renamed are
+    /// put back as they were (the kept file, or nothing), and the rest unstaged, so that the
+    /// directory holds what it held before. (Where hard links are not supported, a replaced
+    /// file cannot be kept, and a failed commit only removes this run's files.)
     pub fn commit(self) -> Result<(), Failure> {
         let mut p = pending();
         if let Some(s) = p.staged.iter().find(|s| !s.ready) {
             return Err(could_not_write(&s.target, "not finished"));
         }
         let staged = std::mem::take(&mut p.staged);
+        let kept: Vec<Option<PathBuf>> = staged
+            .iter()
+            .map(|s| {
+                let previous = hidden(&s.target, "previous").ok()?;
+                let _ = fs::remove_file(&previous);
+                fs::hard_link(&s.target, &previous).ok().map(|()| previous)
+            })
+            .collect();
         for (k, s) in staged.iter().enumerate() {
             if let Err(e) = fs::rename(&s.temp, &s.target) {
                 let failure = could_not_write(&s.target, e);
-                for done in staged.iter().take(k) {
-                    let _ = fs::remove_file(&done.target);
+                for (done, previous) in staged.iter().zip(&kept).take(k) {
+                    match previous {
+                        Some(previous) => {
+                            let _ = fs::rename(previous, &done.target);
+                        }
+                        None => {
+                            let _ = fs::remove_file(&done.target);
+                        }
+                    }
+                }
+                for previous in kept.iter().skip(k).flatten() {
+                    let _ = fs::remove_file(previous);
                 }
                 p.staged = staged.into_iter().skip(k).collect();
                 p.undo();
                 return Err(failure);
             }
+        }
+        for previous in kept.iter().flatten() {
+            let _ = fs::remove_file(previous);
         }
         // Everything is in place: the directories made for it stay.
         p.created.clear();
@@ -261,6 +275,21 @@ impl Drop for Outputs {
         // Committed: nothing is left to undo. Otherwise the command failed.
         pending().undo();
     }
+}
+
+/// The hidden name beside `target` that this process uses for it: `.NAME.TAG-PID`.
+fn hidden(target: &Path, tag: &str) -> Result<PathBuf, Failure> {
+    let name = target
+        .file_name()
+        .ok_or_else(|| Failure::file(target, "expected a file name, found a directory"))?;
+    let dir = match target.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let mut hidden = std::ffi::OsString::from(".");
+    hidden.push(name);
+    hidden.push(format!(".{tag}-{}", std::process::id()));
+    Ok(dir.join(hidden))
 }
 
 fn mark_ready(index: usize) {
