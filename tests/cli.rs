@@ -4,69 +4,13 @@
 //! Expected figures are worked out here from the definitions (products of extreme codes and
 //! taps), not copied from the tool's output.
 
+mod tool_run;
+
 use serde_json::Value;
 use std::fs;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn tool(args: &[&str], dir: &Path) -> Output {
-    let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
-        .args(args)
-        .current_dir(dir)
-        .output();
-    match out {
-        Ok(out) => out,
-        Err(e) => panic!("could not run the tool: {e}"),
-    }
-}
-
-fn status(out: &Output) -> i32 {
-    out.status.code().unwrap_or(-1)
-}
-
-fn stdout(out: &Output) -> String {
-    String::from_utf8_lossy(&out.stdout).into_owned()
-}
-
-fn stderr(out: &Output) -> String {
-    String::from_utf8_lossy(&out.stderr).into_owned()
-}
-
-fn json(out: &Output) -> Value {
-    serde_json::from_slice(&out.stdout)
-        .unwrap_or_else(|e| panic!("not JSON ({e}): {}", stdout(out)))
-}
-
-fn scratch() -> tempfile::TempDir {
-    tempfile::tempdir().unwrap_or_else(|e| panic!("no temp dir: {e}"))
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let path = dir.join(name);
-    fs::write(&path, text).unwrap_or_else(|e| panic!("could not write {name}: {e}"));
-    path
-}
-
-/// The run failed on bad input: exit 2 and exactly one line on stderr that contains `message`.
-fn assert_bad_input(out: &Output, message: &str, what: &str) {
-    assert_eq!(status(out), 2, "{what}: {}", stdout(out));
-    let err = stderr(out);
-    assert_eq!(err.lines().count(), 1, "{what}: {err}");
-    assert!(err.contains(message), "{what}: {err}");
-}
-
-/// The directory holds exactly these file names (nothing partial, no temporary files).
-fn assert_files(dir: &Path, expected: &[&str]) {
-    let mut names: Vec<String> = fs::read_dir(dir)
-        .unwrap_or_else(|e| panic!("{e}"))
-        .filter_map(|e| e.ok())
-        .map(|e| e.file_name().to_string_lossy().into_owned())
-        .collect();
-    names.sort();
-    let mut expected: Vec<String> = expected.iter().map(|s| s.to_string()).collect();
-    expected.sort();
-    assert_eq!(names, expected);
-}
+use std::path::Path;
+use std::process::Command;
+use tool_run::*;
 
 #[test]
 fn check_smoother_on_a_12_bit_adc_is_safe() {
@@ -263,12 +207,6 @@ fn check_missing_file_and_bad_flags_exit_2() {
 }
 
 // ---- design and emit ----------------------------------------------------------------------
-
-const SILO_SPEC: &str = "examples/tool/silo_scale.toml";
-
-fn repo() -> PathBuf {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-}
 
 /// The library's own answer for the invented silo-scale spec (kept in step with the TOML file).
 fn silo_spec() -> tapline::design::Spec<f64> {
@@ -1107,25 +1045,9 @@ fn replay_bad_captures_fail_with_place_and_write_nothing() {
     ];
     for (name, text, message) in cases {
         let dir = scratch();
-        write(dir.path(), "taps.txt", "16384 16384\n");
+        write(dir.path(), "taps.txt", TAPS);
         write(dir.path(), name, text);
-        let out = tool(
-            &[
-                "replay",
-                name,
-                "--taps",
-                "taps.txt",
-                "--column",
-                "2",
-                "--adc-bits",
-                "12",
-                "--align",
-                "right",
-                "--out",
-                "out.csv",
-            ],
-            dir.path(),
-        );
+        let out = tool(&replay_args(name, "out.csv"), dir.path());
         assert_bad_input(&out, message, name);
         assert_files(dir.path(), &["taps.txt", name]);
     }
@@ -1509,26 +1431,7 @@ fn silo_capture_codes() -> Vec<i64> {
 #[test]
 fn prepare_writes_the_four_files_of_the_job() {
     let dir = scratch();
-    let spec = repo().join(SILO_SPEC).display().to_string();
-    let capture = repo()
-        .join("examples/tool/silo_capture.csv")
-        .display()
-        .to_string();
-    let out = tool(
-        &[
-            "--json",
-            "prepare",
-            "--spec",
-            &spec,
-            "--capture",
-            &capture,
-            "--channels",
-            "adc_code",
-            "--out-dir",
-            "job",
-        ],
-        dir.path(),
-    );
+    let out = prepare_silo(dir.path(), "job", &[]);
     assert_eq!(status(&out), 0, "{}", stderr(&out));
     assert_eq!(stderr(&out), "", "no progress bar on a pipe");
     let v = json(&out);

@@ -8,7 +8,8 @@
 //! `no_std` without it. Exit status: 0 done (and safe, within the bound); 1 the taps can
 //! overflow (`check`, `design`, `emit`, `prepare`) or an output saturated or left the error
 //! bound (`replay`, `prepare`); 2 bad input or a file that could not be read or written (one
-//! line on stderr naming the file, line and column, and no output file left behind).
+//! line on stderr naming the file, line and column, and no output file left behind); 130 and
+//! 143 interrupted by SIGINT and SIGTERM (what the command had staged removed).
 //!
 //! Everything it does lives in the library's `tapline::tool` (feature `cli`); this file only
 //! parses the arguments, runs the one job they name and prints its report.

@@ -6,6 +6,7 @@ use crate::tool::input::capture;
 use crate::tool::input::spec;
 use crate::tool::input::taps::{self, Adc, AlignArg, Format, RoundingArg, Written};
 use crate::tool::jobs::{check, design, plot, prepare, replay};
+use crate::tool::output::atomic::{self, Outputs};
 use crate::tool::output::report::{self, Report};
 use clap::{Args, Parser, Subcommand};
 use std::path::PathBuf;
@@ -32,7 +33,8 @@ enum Command {
     /// The whole job: design taps from a spec, prove their headroom, replay a capture through
     /// them, and write taps.rs, response.svg, report.txt and filtered.csv into one directory.
     /// Exit 0 when the taps are safe and the replay stayed within the error bound, 1 otherwise,
-    /// 2 on bad input (and then no file is written).
+    /// 2 on bad input (and then no file is written). The files appear together or not at all;
+    /// --filtered thins filtered.csv or leaves it out.
     Prepare(PrepareArgs),
     /// Design taps that meet a spec (flags or a TOML file) in Q15, Q31 or f32, by a Kaiser
     /// window or equiripple, and report the length, group delay, measured ripple and
@@ -109,6 +111,40 @@ struct PrepareArgs {
     /// Name of the static array in taps.rs.
     #[arg(long, default_value = "TAPS")]
     name: String,
+    /// Which rows of the capture filtered.csv gets (it is about ten times the capture's size):
+    /// `all`; `none` (filtered.csv is not written); `every=N`, one row in N (samples 0, N,
+    /// 2N, ...); or `error-above=E`, only the rows where some channel's |error| exceeds E (LSB
+    /// for q15/q31, the capture's unit for f32) or its output saturated. The report's figures
+    /// always cover every row.
+    #[arg(long, value_name = "WHICH", default_value = "all", value_parser = filtered_rows)]
+    filtered: replay::Rows,
+}
+
+/// `--filtered`: all, none, every=N or error-above=E.
+fn filtered_rows(text: &str) -> Result<replay::Rows, String> {
+    let number = |prefix: &str| text.strip_prefix(prefix).map(str::trim);
+    match text.trim() {
+        "all" => return Ok(replay::Rows::All),
+        "none" => return Ok(replay::Rows::None),
+        _ => {}
+    }
+    if let Some(n) = number("every=") {
+        return match n.parse::<u64>() {
+            Ok(n) if n >= 1 => Ok(replay::Rows::Every(n)),
+            _ => Err(format!("expected every=N with a whole N >= 1, found {n:?}")),
+        };
+    }
+    if let Some(e) = number("error-above=") {
+        return match e.parse::<f64>() {
+            Ok(e) if e.is_finite() && e >= 0.0 => Ok(replay::Rows::ErrorAbove(e)),
+            _ => Err(format!(
+                "expected error-above=E with a finite E >= 0, found {e:?}"
+            )),
+        };
+    }
+    Err(format!(
+        "expected all, none, every=N or error-above=E, found {text:?}"
+    ))
 }
 
 #[derive(Args)]
@@ -268,6 +304,7 @@ fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
         adc,
         rounding: a.rounding.into(),
         out: a.out.clone(),
+        rows: replay::Rows::All,
         known: None,
     })
 }
@@ -320,6 +357,7 @@ struct CheckArgs {
 
 /// Runs the one job `cli` names and returns its report (or the one-line failure, exit 2).
 pub fn run(cli: &Cli) -> Result<Report, Failure> {
+    atomic::clean_up_on_interrupt()?;
     match &cli.command {
         Command::Prepare(a) => {
             design::check_name(&a.name)?;
@@ -335,6 +373,7 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
                 dir: a.out_dir.clone(),
                 name: a.name.clone(),
                 command: command_line(),
+                filtered: a.filtered,
             })
         }
         Command::Design(a) => Ok(design::report(&design::design(a.spec.chosen()?)?)),
@@ -348,10 +387,12 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
             None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
         },
         Command::Replay(a) => {
-            let (replayed, out) = replay::run(&replay_request(a)?)?;
+            let mut outputs = Outputs::new();
+            let (replayed, out) = replay::run(&replay_request(a)?, &mut outputs)?;
             if let Some(out) = out {
-                out.commit()?;
+                outputs.finish(out)?;
             }
+            outputs.commit()?;
             Ok(replayed.report())
         }
         Command::Check(a) => check::run(&check::Request {

@@ -5,9 +5,10 @@
 //! file, line and column.
 
 use crate::tool::failure::Failure;
+use crate::tool::input::file;
 use std::format;
 use std::fs::File;
-use std::io::{BufRead, BufReader};
+use std::io::BufReader;
 use std::path::{Path, PathBuf};
 use std::prelude::rust_2024::*;
 
@@ -41,8 +42,9 @@ struct Span {
 pub struct Capture {
     path: PathBuf,
     reader: BufReader<File>,
-    /// The current line, without its line break.
+    /// The current line, without its line break; `raw` its bytes as read.
     line: String,
+    raw: Vec<u8>,
     /// Its 1-based number.
     number: usize,
     spans: Vec<Span>,
@@ -61,13 +63,13 @@ impl Capture {
     /// Opens a capture; with `header` (implied by [`Pick::Names`]) reads the header row now, so
     /// the channel names are known before the first sample.
     pub fn open(path: &Path, pick: &Pick, header: bool, kind: Kind) -> Result<Capture, Failure> {
-        let file =
-            File::open(path).map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
+        let file = file::open(path)?;
         let total_bytes = file.metadata().map(|m| m.len()).unwrap_or(0);
         let mut c = Capture {
             path: path.to_path_buf(),
             reader: BufReader::with_capacity(1 << 16, file),
             line: String::new(),
+            raw: Vec::new(),
             number: 0,
             spans: Vec::new(),
             width: None,
@@ -160,16 +162,22 @@ impl Capture {
     fn advance(&mut self) -> Result<bool, Failure> {
         loop {
             self.line.clear();
-            let read = self.reader.read_line(&mut self.line).map_err(|e| {
-                Failure::at(
-                    &self.path,
-                    self.number + 1,
-                    1,
-                    format!("expected UTF-8 text ({e})"),
-                )
-            })?;
+            self.raw.clear();
+            let read =
+                file::read_line(&mut self.reader, &mut self.raw, &self.path, self.number + 1)?;
             if read == 0 {
                 return Ok(false);
+            }
+            match std::str::from_utf8(&self.raw) {
+                Ok(text) => self.line.push_str(text),
+                Err(e) => {
+                    return Err(Failure::at(
+                        &self.path,
+                        self.number + 1,
+                        1,
+                        format!("expected UTF-8 text ({e})"),
+                    ));
+                }
             }
             self.number += 1;
             self.bytes_read += read as u64;

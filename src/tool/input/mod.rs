@@ -3,6 +3,7 @@
 //! line and column; the `tool_parsers` fuzz target holds them to that.
 
 pub(crate) mod capture;
+pub mod file;
 pub mod spec;
 pub mod table;
 pub mod taps;

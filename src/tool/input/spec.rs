@@ -236,8 +236,7 @@ impl SpecArgs {
 }
 
 fn from_file(path: &Path) -> Result<Chosen, Failure> {
-    let text = std::fs::read_to_string(path)
-        .map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
+    let text = crate::tool::input::file::read_text(path)?;
     let file: SpecFile = toml::from_str(&text).map_err(|e| {
         let offset = e.span().map_or(0, |s| s.start);
         let (line, column) = line_column(&text, offset);

@@ -20,16 +20,7 @@ pub struct Field {
 
 /// The data rows of a file, checked to be rectangular and non-empty.
 pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
-    let bytes =
-        std::fs::read(path).map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        let (line, column) = {
-            let good = e.utf8_error().valid_up_to();
-            let prefix = String::from_utf8_lossy(e.as_bytes().get(..good).unwrap_or(&[]));
-            crate::tool::failure::line_column(&prefix, good)
-        };
-        Failure::at(path, line, column, "expected UTF-8 text")
-    })?;
+    let text = crate::tool::input::file::read_text(path)?;
     let mut rows: Vec<Vec<Field>> = Vec::new();
     for (index, raw) in text.lines().enumerate() {
         let line = index + 1;

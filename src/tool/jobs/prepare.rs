@@ -9,24 +9,27 @@
 //! | `report.txt` | length, group delay, ripple and attenuation float vs quantized, the headroom proof and verdict, the replay's figures per channel, the result, and what each file is |
 //! | `filtered.csv` | the capture filtered: per row the sample index and, per channel, input, output, float64 reference and error |
 //!
-//! Everything is computed before anything is written, and each file is written whole (temporary
-//! file + rename); bad input leaves no file behind and no directory it created. Exit status: 0
+//! Every input is opened and checked before any output exists; the four files are staged
+//! (hidden temporary files) and renamed into place together only when all are ready, so bad
+//! input, a file that cannot be written or an interrupt leaves none of them behind and no
+//! directory the run created. `--filtered` thins filtered.csv (one row in N, or only the rows
+//! whose error exceeds a threshold) or leaves it out. Exit status: 0
 //! when the taps are safe and every replayed output stayed within the error bound, 1 otherwise,
 //! 2 on bad input.
 
 use crate::Rounding;
 use crate::tool::failure::Failure;
 use crate::tool::input::capture::Pick;
+use crate::tool::input::file;
 use crate::tool::input::spec::Chosen;
 use crate::tool::input::taps::Format;
 use crate::tool::jobs::design::{self, Designed, Taps};
 use crate::tool::jobs::plot;
-use crate::tool::jobs::replay::{self, Replayed};
-use crate::tool::output::atomic;
+use crate::tool::jobs::replay::{self, Replayed, Rows};
+use crate::tool::output::atomic::Outputs;
 use crate::tool::output::report::Report;
 use serde_json::json;
 use std::fmt::Write as _;
-use std::format;
 use std::path::{Path, PathBuf};
 use std::prelude::rust_2024::*;
 
@@ -57,92 +60,71 @@ pub struct Request {
     pub dir: PathBuf,
     pub name: String,
     pub command: String,
-}
-
-/// Creates `dir` if it is missing; remembers so, to take it away again if the job fails.
-struct Directory {
-    path: PathBuf,
-    created: bool,
-}
-
-impl Directory {
-    fn open(path: &Path) -> Result<Directory, Failure> {
-        if path.is_dir() {
-            return Ok(Directory {
-                path: path.to_path_buf(),
-                created: false,
-            });
-        }
-        if path.exists() {
-            return Err(Failure::argument(
-                "--out-dir",
-                format!("expected a directory, found a file: {}", path.display()),
-            ));
-        }
-        std::fs::create_dir_all(path)
-            .map_err(|e| Failure::file(path, format!("could not create the directory: {e}")))?;
-        Ok(Directory {
-            path: path.to_path_buf(),
-            created: true,
-        })
-    }
-
-    /// The job failed: a directory this run created goes again (only if still empty).
-    fn abandon(&self) {
-        if self.created {
-            let _ = std::fs::remove_dir(&self.path);
-        }
-    }
+    /// Which rows filtered.csv gets ([`Rows::None`]: it is not written).
+    pub filtered: Rows,
 }
 
 pub fn run(r: &Request) -> Result<Report, Failure> {
     let designed = design::design(r.chosen.clone())?;
-    let dir = Directory::open(&r.dir)?;
-    match job(r, &designed, &dir.path) {
-        Ok(report) => Ok(report),
-        Err(e) => {
-            dir.abandon();
-            Err(e)
-        }
+    // Every input opened and checked before any output exists: the spec was read by the
+    // design, the capture is opened here (and again, streamed, by the replay).
+    file::open(&r.capture)?;
+    let mut outputs = Outputs::in_directory(&r.dir, "--out-dir")?;
+    for (name, _) in files(r.filtered) {
+        outputs.check(&r.dir.join(name))?;
     }
+    let report = job(r, &designed, &mut outputs)?;
+    outputs.commit()?;
+    Ok(report)
 }
 
-fn job(r: &Request, d: &Designed, dir: &Path) -> Result<Report, Failure> {
+/// The files this run writes, with what each holds: filtered.csv only if it gets any rows.
+fn files(rows: Rows) -> impl Iterator<Item = (&'static str, &'static str)> {
+    FILES
+        .into_iter()
+        .filter(move |(name, _)| rows != Rows::None || *name != "filtered.csv")
+}
+
+fn job(r: &Request, d: &Designed, outputs: &mut Outputs) -> Result<Report, Failure> {
+    let dir = r.dir.as_path();
     let path = |name: &str| dir.join(name);
     let format = d.chosen.format;
-    let (replayed, filtered) = replay::run(&replay::Request {
-        capture: r.capture.clone(),
-        pick: r.pick.clone(),
-        header: r.header,
-        taps: d.taps.clone(),
-        ideal: d.ideal.clone(),
-        format,
-        adc: d.chosen.adc,
-        rounding: Rounding::HalfUp,
-        out: Some(path("filtered.csv")),
-        // The design's own proof and bound, for the same half-up rounding.
-        known: match (&d.proof, d.input) {
-            (Some((headroom, bound)), Some(input)) => Some((input, *headroom, *bound)),
-            _ => None,
+    let (replayed, filtered) = replay::run(
+        &replay::Request {
+            capture: r.capture.clone(),
+            pick: r.pick.clone(),
+            header: r.header,
+            taps: d.taps.clone(),
+            ideal: d.ideal.clone(),
+            format,
+            adc: d.chosen.adc,
+            rounding: Rounding::HalfUp,
+            out: (r.filtered != Rows::None).then(|| path("filtered.csv")),
+            rows: r.filtered,
+            // The design's own proof and bound, for the same half-up rounding.
+            known: match (&d.proof, d.input) {
+                (Some((headroom, bound)), Some(input)) => Some((input, *headroom, *bound)),
+                _ => None,
+            },
         },
-    })?;
-    // Everything in memory first; then the files, each whole.
+        outputs,
+    )?;
+    if let Some(f) = filtered {
+        outputs.finish(f)?;
+    }
     let source = d.rust_source(&r.name, &r.command);
     let svg = plot::render(&plot::design_figure(d))?;
     let safe = d.is_safe();
     let status = if safe && replayed.status() == 0 { 0 } else { 1 };
     let text = report_text(r, d, &replayed, status, dir);
-    atomic::write(&path("taps.rs"), source.as_bytes())?;
-    atomic::write(&path("response.svg"), svg.as_bytes())?;
-    atomic::write(&path("report.txt"), text.as_bytes())?;
-    if let Some(f) = filtered {
-        f.commit()?;
-    }
+    // Staged, all four; the caller commits them together.
+    outputs.write(&path("taps.rs"), source.as_bytes())?;
+    outputs.write(&path("response.svg"), svg.as_bytes())?;
+    outputs.write(&path("report.txt"), text.as_bytes())?;
     let mut stdout = text;
     let _ = writeln!(stdout, "\nwrote {}", dir.display());
-    let files: serde_json::Map<String, serde_json::Value> = FILES
-        .iter()
-        .map(|(name, _)| ((*name).to_string(), json!(path(name).display().to_string())))
+    let files: serde_json::Map<String, serde_json::Value> = files(r.filtered)
+        .map(|(name, _)| (name.to_string(), json!(path(name).display().to_string())))
         .collect();
     let json = json!({
         "command": "prepare",
@@ -150,6 +132,7 @@ fn job(r: &Request, d: &Designed, dir: &Path) -> Result<Report, Failure> {
         "capture": r.capture.display().to_string(),
         "directory": dir.display().to_string(),
         "files": files,
+        "filtered_rows": r.filtered.describe(replayed.unit()),
         "design": d.json("prepare"),
         "replay": replayed.json(),
         "safe": safe,
@@ -227,8 +210,24 @@ fn report_text(r: &Request, d: &Designed, replayed: &Replayed, status: u8, dir: 
         let _ = writeln!(t, "FAIL (exit 1): {}", reasons.join("; "));
     }
     let _ = writeln!(t, "\n== files in {}", dir.display());
-    for (name, what) in FILES {
+    for (name, what) in files(r.filtered) {
         let _ = writeln!(t, "{name:<13} {what}");
+    }
+    match r.filtered {
+        Rows::All => {}
+        Rows::None => {
+            let _ = writeln!(t, "(filtered.csv not written: --filtered none)");
+        }
+        rows => {
+            let _ = writeln!(
+                t,
+                "(filtered.csv holds {}; the figures above cover every row)",
+                rows.describe(replayed.unit())
+            );
+        }
+    }
+    if r.filtered == Rows::None {
+        return t;
     }
     if let Taps::Fixed(_) = &d.taps {
         let _ = writeln!(

@@ -14,7 +14,7 @@ use crate::tool::failure::Failure;
 use crate::tool::input::capture::{Capture, Kind, Pick};
 use crate::tool::input::taps::{Adc, Codes, Format};
 use crate::tool::jobs::design::{MAX_TAPS, Taps};
-use crate::tool::output::atomic::Streaming;
+use crate::tool::output::atomic::{Outputs, Streaming};
 use crate::tool::output::progress::Bar;
 use crate::tool::output::report::{self, Report};
 use crate::{Error, FirUpTo, Rounding, Sample};
@@ -37,9 +37,41 @@ pub struct Request {
     pub adc: Adc,
     pub rounding: Rounding,
     pub out: Option<PathBuf>,
+    /// Which rows `out` gets.
+    pub rows: Rows,
     /// Fixed point: the input range, headroom and error bound already worked out for these
     /// taps and this rounding (by `prepare`'s design); None: replay works them out.
     pub known: Option<(InputRange, Headroom, ErrorBound)>,
+}
+
+/// Which rows of the filtered capture are written.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Rows {
+    /// Every row.
+    All,
+    /// None: the file is not written at all.
+    None,
+    /// Every n-th row (n ≥ 1): sample 0, n, 2n, …
+    Every(u64),
+    /// Only the rows where some channel's |error| exceeds this (in the error unit: LSB for
+    /// fixed point, the capture's unit for f32), or its output saturated (fixed point) or came
+    /// out NaN or infinite (f32).
+    ErrorAbove(f64),
+}
+
+impl Rows {
+    /// How the choice reads in a report.
+    pub fn describe(self, unit: &str) -> String {
+        match self {
+            Rows::All => String::from("every row"),
+            Rows::None => String::from("no row"),
+            Rows::Every(1) => String::from("every row"),
+            Rows::Every(n) => format!("1 row in {n} (samples 0, {n}, {}, ...)", 2 * n),
+            Rows::ErrorAbove(e) => format!(
+                "only rows where a channel's |error| exceeds {e} {unit} or its output saturated"
+            ),
+        }
+    }
 }
 
 /// One channel's figures.
@@ -358,9 +390,10 @@ fn drive_float(
     )
 }
 
-/// Streams the capture. The output file, if any, is handed back still uncommitted: the caller
-/// commits it (the `prepare` command only once all its files are ready).
-pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
+/// Streams the capture. The output file, if any, is staged in `outputs` and handed back still
+/// unfinished: the caller finishes it and commits (`prepare` only once all its files are
+/// staged).
+pub fn run(r: &Request, outputs: &mut Outputs) -> Result<(Replayed, Option<Streaming>), Failure> {
     let word = r.format.word_bits();
     let (kind, headroom, bound) = match &r.taps {
         Taps::Fixed(codes) => {
@@ -392,7 +425,7 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     let names = capture.names().to_vec();
     let mut out = match &r.out {
         Some(path) => {
-            let mut w = Streaming::create(path)?;
+            let mut w = outputs.stream(path)?;
             let fixed_name = match r.format {
                 Format::F32 => "f32",
                 _ => "fixed",
@@ -430,10 +463,12 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
     let float = r.format == Format::F32;
     let mut feed = |step: &mut Step| -> Result<(), Failure> {
         let mut row: Vec<f64> = Vec::with_capacity(channels.len());
+        // Per channel: input, output, reference, error.
+        let mut results: Vec<(f64, f64, f64, f64)> = Vec::with_capacity(channels.len());
         let mut line = String::new();
         while capture.next_row(&mut row)? {
-            line.clear();
-            let _ = write!(line, "{samples}");
+            results.clear();
+            let mut notable = false;
             for (k, &x) in row.iter().enumerate() {
                 let (y, saturated, reference) = step(k, x);
                 let Some(c) = channels.get_mut(k) else {
@@ -448,15 +483,28 @@ pub fn run(r: &Request) -> Result<(Replayed, Option<Streaming>), Failure> {
                 } else {
                     c.max_error = c.max_error.max(error.abs());
                 }
-                if out.is_some() {
+                if let Rows::ErrorAbove(limit) = r.rows {
+                    notable |= saturated || error.abs() > limit;
+                }
+                results.push((x, y, reference, error));
+            }
+            let keep = match r.rows {
+                Rows::All => true,
+                Rows::None => false,
+                Rows::Every(n) => samples % n.max(1) == 0,
+                Rows::ErrorAbove(_) => notable,
+            };
+            if let (Some(w), true) = (&mut out, keep) {
+                // Only the rows written are formatted: the text costs more than the filter.
+                line.clear();
+                let _ = write!(line, "{samples}");
+                for &(x, y, reference, error) in &results {
                     if float {
                         let _ = write!(line, ",{x},{y},{reference},{error:.3e}");
                     } else {
                         let _ = write!(line, ",{x},{y},{reference:.6},{error:.6}");
                     }
                 }
-            }
-            if let Some(w) = &mut out {
                 w.write_line(&line)?;
             }
             samples += 1;
