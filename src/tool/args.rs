@@ -62,17 +62,15 @@ struct AdcArgs {
     /// ADC resolution in bits (default: the whole sample word).
     #[arg(long, value_name = "BITS")]
     adc_bits: Option<u32>,
-    /// Where the ADC's bits sit in the sample word.
-    #[arg(long, value_enum, default_value = "left")]
-    align: AlignArg,
+    /// Where the ADC's bits sit in the sample word: required when --adc-bits is narrower than
+    /// the sample word.
+    #[arg(long, value_enum)]
+    align: Option<AlignArg>,
 }
 
 impl AdcArgs {
-    fn adc(&self) -> Adc {
-        Adc {
-            bits: self.adc_bits,
-            align: self.align,
-        }
+    fn adc(&self, format: Format) -> Result<Adc, Failure> {
+        Adc::from_flags(self.adc_bits, self.align, format)
     }
 }
 
@@ -152,11 +150,7 @@ fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, F
             }
             (
                 s.format,
-                AdcArgs {
-                    adc_bits: s.adc_bits,
-                    align: s.align,
-                }
-                .adc(),
+                Adc::from_flags(s.adc_bits, s.align, s.format)?,
                 rate,
             )
         }
@@ -248,8 +242,9 @@ fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
         }
         (None, Some(path)) => {
             let format = a.format.unwrap_or(Format::Q15);
+            let adc = a.adc.adc(format)?;
             let (taps, ideal) = table_taps(path, format, a.written)?;
-            (taps, ideal, format, a.adc.adc())
+            (taps, ideal, format, adc)
         }
         (None, None) => {
             return Err(Failure::argument(
@@ -358,7 +353,7 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
             table: a.table.clone(),
             format: a.format,
             written: a.written,
-            adc: a.adc.adc(),
+            adc: a.adc.adc(a.format)?,
             rounding: a.rounding.into(),
             worst_case: a.worst_case.clone(),
         }),

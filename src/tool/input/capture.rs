@@ -5,6 +5,7 @@
 //! file, line and column.
 
 use crate::tool::failure::Failure;
+use crate::tool::input::text;
 use std::format;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
@@ -41,6 +42,8 @@ struct Span {
 pub struct Capture {
     path: PathBuf,
     reader: BufReader<File>,
+    /// The current line's bytes as read, without its line break.
+    raw: Vec<u8>,
     /// The current line, without its line break.
     line: String,
     /// Its 1-based number.
@@ -64,9 +67,15 @@ impl Capture {
         let file =
             File::open(path).map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
         let total_bytes = file.metadata().map(|m| m.len()).unwrap_or(0);
+        let mut reader = BufReader::with_capacity(1 << 16, file);
+        let head = reader
+            .fill_buf()
+            .map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
+        text::refuse_utf16(path, head)?;
         let mut c = Capture {
             path: path.to_path_buf(),
-            reader: BufReader::with_capacity(1 << 16, file),
+            reader,
+            raw: Vec::new(),
             line: String::new(),
             number: 0,
             spans: Vec::new(),
@@ -159,27 +168,36 @@ impl Capture {
     /// Reads up to the next row with fields, checks its width; false at the end of the file.
     fn advance(&mut self) -> Result<bool, Failure> {
         loop {
-            self.line.clear();
-            let read = self.reader.read_line(&mut self.line).map_err(|e| {
+            self.raw.clear();
+            let read = self.reader.read_until(b'\n', &mut self.raw).map_err(|e| {
                 Failure::at(
                     &self.path,
                     self.number + 1,
                     1,
-                    format!("expected UTF-8 text ({e})"),
+                    format!("could not read: {e}"),
                 )
             })?;
             if read == 0 {
                 return Ok(false);
             }
             self.number += 1;
+            let start = self.bytes_read;
             self.bytes_read += read as u64;
-            while self.line.ends_with(['\n', '\r']) {
-                self.line.pop();
+            while self.raw.ends_with(b"\n") || self.raw.ends_with(b"\r") {
+                self.raw.pop();
             }
+            self.line.clear();
+            self.line.push_str(text::decode_line(
+                &self.path,
+                self.number,
+                start,
+                &self.raw,
+            )?);
             let trimmed = self.line.trim();
             if trimmed.is_empty() || trimmed.starts_with('#') {
                 continue;
             }
+            text::refuse_semicolons(&self.path, self.number, &self.line)?;
             split(&self.line, &mut self.spans);
             match self.width {
                 None => {

@@ -6,3 +6,4 @@ pub(crate) mod capture;
 pub mod spec;
 pub mod table;
 pub mod taps;
+pub(crate) mod text;

@@ -3,6 +3,7 @@
 //! Every data row must have as many fields as the first one.
 
 use crate::tool::failure::Failure;
+use crate::tool::input::text;
 use std::format;
 use std::path::Path;
 use std::prelude::rust_2024::*;
@@ -22,14 +23,7 @@ pub struct Field {
 pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
     let bytes =
         std::fs::read(path).map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        let (line, column) = {
-            let good = e.utf8_error().valid_up_to();
-            let prefix = String::from_utf8_lossy(e.as_bytes().get(..good).unwrap_or(&[]));
-            crate::tool::failure::line_column(&prefix, good)
-        };
-        Failure::at(path, line, column, "expected UTF-8 text")
-    })?;
+    let text = text::decode(path, bytes)?;
     let mut rows: Vec<Vec<Field>> = Vec::new();
     for (index, raw) in text.lines().enumerate() {
         let line = index + 1;
@@ -37,6 +31,7 @@ pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
         if trimmed.is_empty() || trimmed.starts_with('#') {
             continue;
         }
+        text::refuse_semicolons(path, line, raw)?;
         let fields = split(raw, line);
         if let Some(first) = rows.first() {
             if fields.len() != first.len() {

@@ -626,6 +626,7 @@ pub fn plot_table(r: &TableRequest) -> Result<Report, Failure> {
         "format": label,
         "taps": n,
         "sample_rate_hz": r.sample_rate_hz,
+        "adc": r.adc.json(r.format.word_bits()),
         "file": r.out.display().to_string(),
     });
     let mut measured_json: Option<Value> = None;

@@ -1,0 +1,471 @@
+//! The host tool's messages name their place and tell the truth (issue 15, points 5, 6, 7 and
+//! 9): design-size failures name the file and key and the tool's real limit; text decoding
+//! (byte-order marks, UTF-16, binary bytes, semicolons) is the same for every reader; `emit`
+//! writes only names rustc accepts; an ADC narrower than its sample word needs its alignment
+//! said, and every report says the one it used; plot axes read in engineering units.
+
+mod tool_run;
+
+use std::fs;
+use std::path::Path;
+use tool_run::*;
+
+/// A spec file of our schema with the given lines after the band and rate.
+fn spec_file(dir: &Path, name: &str, rest: &str) -> String {
+    write(
+        dir,
+        name,
+        &format!("band = \"lowpass\"\nsample_rate_hz = 1000\n{rest}"),
+    );
+    name.to_string()
+}
+
+// ---- point 5: design-size failures name the file, the key and the real limit ----
+
+#[test]
+fn a_spec_too_long_for_the_tool_names_the_flag_and_the_real_limit() {
+    let dir = scratch();
+    // 0.01 Hz of transition at 1 kHz: Kaiser's estimate is far beyond any limit.
+    let narrow = [
+        "design",
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "100,100.01",
+        "--attenuation",
+        "80",
+    ];
+    let out = tool(&narrow, dir.path());
+    assert_bad_input(&out, "command line: --edges: ", "too narrow, flags");
+    let err = stderr(&out);
+    assert!(err.contains("2048 taps") && !err.contains("65536"), "{err}");
+
+    // 0.5 Hz: an estimate of about 10 000 taps, beyond the tool's 2048.
+    let out = tool(
+        &[
+            "design",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "100,100.5",
+            "--attenuation",
+            "80",
+        ],
+        dir.path(),
+    );
+    assert_bad_input(&out, "command line: --edges: ", "beyond 2048, flags");
+    assert!(stderr(&out).contains("2048 taps"), "{}", stderr(&out));
+
+    // Equiripple: the limit is the library's 1024.
+    let mut equiripple = narrow.to_vec();
+    equiripple.extend(["--method", "equiripple"]);
+    let out = tool(&equiripple, dir.path());
+    assert_bad_input(&out, "command line: --edges: ", "too narrow, equiripple");
+    let err = stderr(&out);
+    assert!(err.contains("1024 taps") && !err.contains("65536"), "{err}");
+}
+
+#[test]
+fn a_spec_file_too_long_for_the_tool_names_the_file_line_and_key() {
+    let dir = scratch();
+    let name = spec_file(
+        dir.path(),
+        "narrow.toml",
+        "ripple_db = 0.1\nattenuation_db = 80\nformat = \"f32\"\nedges_hz = [100, 100.01]\n",
+    );
+    let out = tool(&["design", "--spec", &name], dir.path());
+    // edges_hz is on line 6, its value at column 12.
+    assert_bad_input(&out, "narrow.toml:6:12: edges_hz: ", "too narrow, file");
+    let err = stderr(&out);
+    assert!(err.contains("2048 taps") && !err.contains("65536"), "{err}");
+
+    let name = spec_file(
+        dir.path(),
+        "deep.toml",
+        "edges_hz = [100, 101]\nripple_db = 0.1\nattenuation_db = 90\nformat = \"q15\"\nmethod = \"equiripple\"\n",
+    );
+    let out = tool(&["design", "--spec", &name], dir.path());
+    assert_bad_input(
+        &out,
+        "deep.toml:3:12: edges_hz: ",
+        "not met, equiripple file",
+    );
+    assert!(stderr(&out).contains("1024 taps"), "{}", stderr(&out));
+}
+
+// ---- point 5: one text decoding for specs, tap tables and captures ----
+
+const SMOOTHER: &str = "# 1/4 1/2 1/4\n8192\n16384\n8192\n";
+
+fn utf16le(text: &str, bom: bool) -> Vec<u8> {
+    let mut bytes = if bom { vec![0xFF, 0xFE] } else { vec![] };
+    for unit in text.encode_utf16() {
+        bytes.extend(unit.to_le_bytes());
+    }
+    bytes
+}
+
+fn replay_column(dir: &Path, capture: &str, header: bool) -> std::process::Output {
+    let mut args = vec!["replay", capture, "--taps", "smooth.txt"];
+    if header {
+        args.extend(["--channels", "adc"]);
+    }
+    tool(&args, dir)
+}
+
+#[test]
+fn a_utf8_byte_order_mark_is_accepted_by_every_reader() {
+    let dir = scratch();
+    let bom = "\u{feff}";
+    write(dir.path(), "smooth.txt", &format!("{bom}{SMOOTHER}"));
+    let out = tool(&["check", "smooth.txt"], dir.path());
+    assert_eq!(status(&out), 0, "tap table with a BOM: {}", stderr(&out));
+
+    write(
+        dir.path(),
+        "capture.csv",
+        &format!("{bom}adc,other\n5,1\n7,2\n"),
+    );
+    let out = replay_column(dir.path(), "capture.csv", true);
+    assert_eq!(
+        status(&out),
+        0,
+        "capture header with a BOM: {}",
+        stderr(&out)
+    );
+    assert!(
+        stdout(&out).contains("3 rows") || stdout(&out).contains("2 rows"),
+        "{}",
+        stdout(&out)
+    );
+
+    // A BOM before the first number of a capture without a header.
+    write(dir.path(), "bare.txt", &format!("{bom}5\n7\n"));
+    let out = replay_column(dir.path(), "bare.txt", false);
+    assert_eq!(status(&out), 0, "capture with a BOM: {}", stderr(&out));
+
+    let name = spec_file(
+        dir.path(),
+        "spec.toml",
+        "edges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"f32\"\n",
+    );
+    let text = fs::read_to_string(dir.path().join(&name)).unwrap_or_default();
+    write(dir.path(), &name, &format!("{bom}{text}"));
+    let out = tool(&["design", "--spec", &name], dir.path());
+    assert_eq!(status(&out), 0, "spec with a BOM: {}", stderr(&out));
+}
+
+#[test]
+fn utf16_is_refused_by_name_in_every_reader() {
+    let dir = scratch();
+    write(dir.path(), "smooth.txt", SMOOTHER);
+    for bom in [true, false] {
+        let what = if bom { "with BOM" } else { "without BOM" };
+        fs::write(dir.path().join("t16.txt"), utf16le(SMOOTHER, bom)).unwrap_or_default();
+        let out = tool(&["check", "t16.txt"], dir.path());
+        assert_bad_input(&out, "t16.txt: expected UTF-8 text, found UTF-16", what);
+
+        fs::write(dir.path().join("c16.csv"), utf16le("adc\n5\n7\n", bom)).unwrap_or_default();
+        let out = replay_column(dir.path(), "c16.csv", true);
+        assert_bad_input(&out, "c16.csv: expected UTF-8 text, found UTF-16", what);
+
+        let spec = "band = \"lowpass\"\nsample_rate_hz = 1000\nedges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"f32\"\n";
+        fs::write(dir.path().join("s16.toml"), utf16le(spec, bom)).unwrap_or_default();
+        let out = tool(&["design", "--spec", "s16.toml"], dir.path());
+        assert_bad_input(&out, "s16.toml: expected UTF-8 text, found UTF-16", what);
+    }
+}
+
+#[test]
+fn a_binary_byte_is_refused_at_its_line_column_and_offset() {
+    let dir = scratch();
+    // Line 3, after "format = " (9 characters): byte offset 21 + 15 + 9 = 45.
+    let mut spec = b"band = \"lowpass\"\nsample_rate_hz = 1000\nformat = ".to_vec();
+    spec.extend([0xFF, 0x00, 0x7F, 0x80]);
+    fs::write(dir.path().join("bin.toml"), &spec).unwrap_or_default();
+    let out = tool(&["design", "--spec", "bin.toml"], dir.path());
+    assert_bad_input(
+        &out,
+        "bin.toml:3:10: expected UTF-8 text, found byte 0xFF at byte offset 48",
+        "binary spec",
+    );
+
+    let mut spec = b"band = \"lowpass\"\n".to_vec();
+    spec.extend([0x00; 8]);
+    fs::write(dir.path().join("nul.toml"), &spec).unwrap_or_default();
+    let out = tool(&["design", "--spec", "nul.toml"], dir.path());
+    assert_bad_input(
+        &out,
+        "nul.toml:2:1: expected UTF-8 text, found a NUL byte at byte offset 17",
+        "NUL in spec",
+    );
+
+    // In a capture, the offset counts the lines before.
+    write(dir.path(), "smooth.txt", SMOOTHER);
+    let mut capture = b"5\n6\n7".to_vec();
+    capture.extend([0xC3, b'\n']);
+    fs::write(dir.path().join("bin.csv"), &capture).unwrap_or_default();
+    let out = replay_column(dir.path(), "bin.csv", false);
+    assert_bad_input(
+        &out,
+        "bin.csv:3:2: expected UTF-8 text, found byte 0xC3 at byte offset 5",
+        "binary capture",
+    );
+}
+
+#[test]
+fn a_semicolon_separated_capture_is_named_as_such() {
+    let dir = scratch();
+    write(dir.path(), "smooth.txt", SMOOTHER);
+    // A spreadsheet export with decimal commas.
+    write(dir.path(), "semi.csv", "time;adc\n0,000;806\n0,001;885\n");
+    let out = tool(
+        &[
+            "replay",
+            "semi.csv",
+            "--taps",
+            "smooth.txt",
+            "--channels",
+            "adc",
+        ],
+        dir.path(),
+    );
+    assert_bad_input(&out, "semi.csv:1:5: ", "semicolon header");
+    assert!(
+        stderr(&out).contains("semicolon-separated"),
+        "{}",
+        stderr(&out)
+    );
+
+    write(dir.path(), "semi.txt", "806;1\n885;2\n");
+    let out = replay_column(dir.path(), "semi.txt", false);
+    assert_bad_input(&out, "semi.txt:1:4: ", "semicolon rows");
+    assert!(
+        stderr(&out).contains("semicolon-separated"),
+        "{}",
+        stderr(&out)
+    );
+
+    write(dir.path(), "semi_taps.txt", "8192;16384;8192\n");
+    let out = tool(&["check", "semi_taps.txt"], dir.path());
+    assert_bad_input(&out, "semi_taps.txt:1:5: ", "semicolon tap table");
+    assert!(
+        stderr(&out).contains("semicolon-separated"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+// ---- point 6: emit writes only names rustc accepts ----
+
+#[test]
+fn emit_refuses_names_rustc_would_reject() {
+    let dir = scratch();
+    let base = [
+        "emit",
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "5,50",
+        "--attenuation",
+        "60",
+        "--format",
+        "f32",
+        "--out",
+        "taps.rs",
+        "--name",
+    ];
+    for name in ["_", "r#TAPS", "1TAPS", "", "TAPS-2", "ÄTAPS"] {
+        let mut args = base.to_vec();
+        args.push(name);
+        let out = tool(&args, dir.path());
+        assert_bad_input(&out, "command line: --name: ", name);
+        assert!(
+            !dir.path().join("taps.rs").exists(),
+            "{name}: a file was written"
+        );
+    }
+    let out = tool(
+        &[
+            "prepare",
+            "--band",
+            "lowpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "5,50",
+            "--attenuation",
+            "60",
+            "--capture",
+            "none.csv",
+            "--out-dir",
+            "job",
+            "--name",
+            "_",
+        ],
+        dir.path(),
+    );
+    assert_bad_input(&out, "command line: --name: ", "prepare _");
+    // An underscore followed by something is a name.
+    let mut args = base.to_vec();
+    args.push("_TAPS");
+    let out = tool(&args, dir.path());
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+    let source = fs::read_to_string(dir.path().join("taps.rs")).unwrap_or_default();
+    assert!(source.contains("pub static _TAPS: [f32; "), "{source}");
+}
+
+// ---- point 7: an ADC narrower than its word needs its alignment; reports say it ----
+
+const SILO_FLAGS: [&str; 13] = [
+    "--band",
+    "lowpass",
+    "--rate",
+    "1000",
+    "--edges",
+    "5,50",
+    "--ripple",
+    "0.1",
+    "--attenuation",
+    "60",
+    "--format",
+    "q15",
+    "--adc-bits",
+];
+
+#[test]
+fn a_narrow_adc_without_its_alignment_is_refused() {
+    let dir = scratch();
+    let mut args = vec!["design"];
+    args.extend(SILO_FLAGS);
+    args.push("12");
+    let out = tool(&args, dir.path());
+    assert_bad_input(&out, "command line: --align: ", "design flags");
+    assert!(
+        stderr(&out).contains("12-bit ADC in 16-bit samples"),
+        "{}",
+        stderr(&out)
+    );
+
+    write(dir.path(), "smooth.txt", SMOOTHER);
+    let out = tool(&["check", "smooth.txt", "--adc-bits", "12"], dir.path());
+    assert_bad_input(&out, "command line: --align: ", "check");
+    write(dir.path(), "c.txt", "5\n7\n");
+    let out = tool(
+        &[
+            "replay",
+            "c.txt",
+            "--taps",
+            "smooth.txt",
+            "--adc-bits",
+            "12",
+        ],
+        dir.path(),
+    );
+    assert_bad_input(&out, "command line: --align: ", "replay");
+    let out = tool(
+        &[
+            "plot",
+            "--taps",
+            "smooth.txt",
+            "--rate",
+            "1000",
+            "--adc-bits",
+            "12",
+            "--out",
+            "p.svg",
+        ],
+        dir.path(),
+    );
+    assert_bad_input(&out, "command line: --align: ", "plot table");
+    assert!(!dir.path().join("p.svg").exists());
+
+    // The file: the place of adc_bits, and the key to add.
+    let name = spec_file(
+        dir.path(),
+        "silo.toml",
+        "edges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"q15\"\nadc_bits = 12\n",
+    );
+    let out = tool(&["design", "--spec", &name], dir.path());
+    assert_bad_input(&out, "silo.toml:7:12: expected adc_align = ", "spec file");
+
+    // The whole word needs none.
+    let out = tool(&["check", "smooth.txt", "--adc-bits", "16"], dir.path());
+    assert_eq!(status(&out), 0, "{}", stderr(&out));
+}
+
+#[test]
+fn every_report_says_which_alignment_it_assumed() {
+    let dir = scratch();
+    write(dir.path(), "smooth.txt", SMOOTHER);
+    write(dir.path(), "c.txt", "5\n7\n");
+    for align in ["left", "right"] {
+        let word = format!("{align}-aligned");
+        let mut design = vec!["design"];
+        design.extend(SILO_FLAGS);
+        design.extend(["12", "--align", align]);
+        let check = vec!["check", "smooth.txt", "--adc-bits", "12", "--align", align];
+        let replay = vec![
+            "replay",
+            "c.txt",
+            "--taps",
+            "smooth.txt",
+            "--adc-bits",
+            "12",
+            "--align",
+            align,
+        ];
+        let mut plot = vec!["plot", "--out", "p.svg"];
+        plot.extend(&design[1..]);
+        for args in [&design, &check, &replay, &plot] {
+            let out = tool(args, dir.path());
+            assert!(status(&out) < 2, "{args:?}: {}", stderr(&out));
+            assert!(stdout(&out).contains(&word), "{args:?}: {}", stdout(&out));
+            let mut with_json = args.to_vec();
+            with_json.push("--json");
+            let v = json(&tool(&with_json, dir.path()));
+            assert_eq!(v["adc"]["align"], align, "{args:?}: {v}");
+            assert_eq!(v["adc"]["bits"], 12, "{args:?}: {v}");
+            assert_eq!(v["adc"]["word_bits"], 16, "{args:?}: {v}");
+        }
+    }
+    // The whole word: no alignment to assume, and the report says so.
+    let out = tool(&["check", "smooth.txt", "--json"], dir.path());
+    let v = json(&out);
+    assert_eq!(v["adc"]["align"], "whole word", "{v}");
+    let out = tool(&["check", "smooth.txt"], dir.path());
+    assert!(
+        stdout(&out).contains("full 16-bit sample word"),
+        "{}",
+        stdout(&out)
+    );
+}
+
+#[test]
+fn the_silo_spec_by_flags_and_by_file_agree() {
+    // The issue's case: the same spec by flags and by the example file must give one verdict.
+    let repo = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let mut flags = vec!["design", "--json"];
+    flags.extend(SILO_FLAGS);
+    flags.extend(["12", "--align", "right"]);
+    let by_flags = json(&tool(&flags, repo));
+    let by_file = json(&tool(
+        &[
+            "design",
+            "--json",
+            "--spec",
+            "examples/tool/silo_scale.toml",
+        ],
+        repo,
+    ));
+    assert_eq!(by_flags["safe"], true, "{by_flags}");
+    assert_eq!(by_flags["safe"], by_file["safe"]);
+    assert_eq!(by_flags["adc"], by_file["adc"]);
+    assert_eq!(by_flags["values"], by_file["values"]);
+}

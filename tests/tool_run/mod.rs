@@ -1,0 +1,67 @@
+//! Running the built tool as a user runs it, shared by the CLI test files: the command, its
+//! exit status and output, scratch directories, and the one-line failure check.
+#![allow(dead_code)]
+
+use serde_json::Value;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+pub fn tool(args: &[&str], dir: &Path) -> Output {
+    let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
+        .args(args)
+        .current_dir(dir)
+        .output();
+    match out {
+        Ok(out) => out,
+        Err(e) => panic!("could not run the tool: {e}"),
+    }
+}
+
+pub fn status(out: &Output) -> i32 {
+    out.status.code().unwrap_or(-1)
+}
+
+pub fn stdout(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
+pub fn stderr(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+pub fn json(out: &Output) -> Value {
+    serde_json::from_slice(&out.stdout)
+        .unwrap_or_else(|e| panic!("not JSON ({e}): {}", stdout(out)))
+}
+
+pub fn scratch() -> tempfile::TempDir {
+    tempfile::tempdir().unwrap_or_else(|e| panic!("no temp dir: {e}"))
+}
+
+pub fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let path = dir.join(name);
+    fs::write(&path, text).unwrap_or_else(|e| panic!("could not write {name}: {e}"));
+    path
+}
+
+/// The run failed on bad input: exit 2 and exactly one line on stderr that contains `message`.
+pub fn assert_bad_input(out: &Output, message: &str, what: &str) {
+    assert_eq!(status(out), 2, "{what}: {}", stdout(out));
+    let err = stderr(out);
+    assert_eq!(err.lines().count(), 1, "{what}: {err}");
+    assert!(err.contains(message), "{what}: {err}");
+}
+
+/// The directory holds exactly these file names (nothing partial, no temporary files).
+pub fn assert_files(dir: &Path, expected: &[&str]) {
+    let mut names: Vec<String> = fs::read_dir(dir)
+        .unwrap_or_else(|e| panic!("{e}"))
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    let mut expected: Vec<String> = expected.iter().map(|s| s.to_string()).collect();
+    expected.sort();
+    assert_eq!(names, expected);
+}
