@@ -469,3 +469,255 @@ fn the_silo_spec_by_flags_and_by_file_agree() {
     assert_eq!(by_flags["adc"], by_file["adc"]);
     assert_eq!(by_flags["values"], by_file["values"]);
 }
+
+// ---- point 9: plots in engineering units, log axes over decades, legends clear of curves ----
+
+/// The SVG's text elements in document order: (x, y, text), with XML entities as written.
+fn texts(svg: &str) -> Vec<(f64, f64, String)> {
+    let attr = |tag: &str, name: &str| -> f64 {
+        tag.split_once(&format!(" {name}=\""))
+            .and_then(|(_, rest)| rest.split_once('"'))
+            .and_then(|(v, _)| v.parse().ok())
+            .unwrap_or(f64::NAN)
+    };
+    svg.split("<text")
+        .skip(1)
+        .filter_map(|chunk| {
+            let (tag, rest) = chunk.split_once('>')?;
+            let (body, _) = rest.split_once("</text>")?;
+            Some((attr(tag, "x"), attr(tag, "y"), body.trim().to_string()))
+        })
+        .collect()
+}
+
+fn plot_svg(dir: &Path, args: &[&str]) -> String {
+    let mut all = vec!["plot", "--out", "p.svg"];
+    all.extend(args);
+    let out = tool(&all, dir);
+    assert_eq!(status(&out), 0, "{args:?}: {}", stderr(&out));
+    fs::read_to_string(dir.join("p.svg")).unwrap_or_default()
+}
+
+fn labels(svg: &str) -> Vec<String> {
+    texts(svg).into_iter().map(|(_, _, t)| t).collect()
+}
+
+#[test]
+fn a_2_mhz_plot_reads_in_khz_and_mhz_with_no_long_numbers() {
+    let dir = scratch();
+    for band in [
+        ["lowpass", "200000,300000"],
+        ["highpass", "100000,200000"],
+        ["bandstop", "300000,350000,450000,500000"],
+    ] {
+        let svg = plot_svg(
+            dir.path(),
+            &[
+                "--band",
+                band[0],
+                "--rate",
+                "2000000",
+                "--edges",
+                band[1],
+                "--attenuation",
+                "40",
+            ],
+        );
+        let l = labels(&svg);
+        assert!(l.iter().any(|t| t == "frequency (MHz)"), "{band:?}: {l:?}");
+        // Ticks 0, 0.1, ... 1 (MHz) up to the axis's end; nothing like 1000000 or 300000.
+        assert!(
+            l.iter().any(|t| t == "0.5") && l.iter().any(|t| t == "1"),
+            "{band:?}: {l:?}"
+        );
+        assert!(!l.iter().any(|t| t.contains("00000")), "{band:?}: {l:?}");
+        assert!(
+            l.iter().any(|t| t.contains("at 2 MHz")),
+            "{band:?}: the spec line in MHz"
+        );
+    }
+}
+
+#[test]
+fn bands_spanning_decades_get_a_log_frequency_axis_and_an_option_overrides_it() {
+    let dir = scratch();
+    // 0–20 Hz at 1 kHz: a sliver on a linear axis.
+    let lowpass = [
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "20,50",
+        "--attenuation",
+        "60",
+    ];
+    let svg = plot_svg(dir.path(), &lowpass);
+    let l = labels(&svg);
+    assert!(
+        l.iter().any(|t| t.starts_with("frequency (log scale")),
+        "{l:?}"
+    );
+    for tick in ["1 Hz", "10 Hz", "20 Hz", "100 Hz", "500 Hz"] {
+        assert!(l.iter().any(|t| t == tick), "{tick}: {l:?}");
+    }
+    // 2 MHz, a bandpass from 20 kHz: labels in Hz, kHz and MHz on one log axis.
+    let svg = plot_svg(
+        dir.path(),
+        &[
+            "--band",
+            "bandpass",
+            "--rate",
+            "2000000",
+            "--edges",
+            "5000,20000,100000,150000",
+            "--attenuation",
+            "50",
+        ],
+    );
+    let l = labels(&svg);
+    for tick in ["100 Hz", "1 kHz", "100 kHz", "1 MHz"] {
+        assert!(l.iter().any(|t| t == tick), "{tick}: {l:?}");
+    }
+    let mut linear = lowpass.to_vec();
+    linear.extend(["--freq-scale", "linear"]);
+    let l = labels(&plot_svg(dir.path(), &linear));
+    assert!(!l.iter().any(|t| t.contains("log scale")), "{l:?}");
+    assert!(l.iter().any(|t| t == "frequency (Hz)"), "{l:?}");
+    let mut log = [
+        "--band",
+        "highpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "100,150",
+        "--attenuation",
+        "60",
+    ]
+    .to_vec();
+    let l = labels(&plot_svg(dir.path(), &log));
+    assert!(
+        !l.iter().any(|t| t.contains("log scale")),
+        "auto: linear for 100 Hz of 500"
+    );
+    log.extend(["--freq-scale", "log"]);
+    let l = labels(&plot_svg(dir.path(), &log));
+    assert!(l.iter().any(|t| t.contains("log scale")), "{l:?}");
+}
+
+#[test]
+fn legends_sit_above_their_charts_and_the_close_up_has_its_own() {
+    let dir = scratch();
+    let svg = plot_svg(
+        dir.path(),
+        &[
+            "--band",
+            "bandpass",
+            "--rate",
+            "1000",
+            "--edges",
+            "50,80,150,200",
+            "--attenuation",
+            "50",
+        ],
+    );
+    let t = texts(&svg);
+    let index = |what: &str, from: usize| {
+        t.iter()
+            .skip(from)
+            .position(|(_, _, s)| s == what)
+            .map(|k| k + from)
+            .unwrap_or_else(|| panic!("no {what:?} after {from}: {t:?}"))
+    };
+    // Each panel: its caption, its legend, then the y axis title and labels. Every legend
+    // entry lies above the highest y label, that is above the plotting area.
+    for (caption, entries) in [
+        (
+            "magnitude response",
+            &["passband", "stopband", "float64 taps", "Q15 taps"][..],
+        ),
+        (
+            "passband close-up (ripple limit 0.1 dB peak to peak)",
+            &[
+                "float64 taps",
+                "Q15 taps",
+                "ripple limit (highest gain, and that less the ripple)",
+            ][..],
+        ),
+    ] {
+        let start = index(caption, 0);
+        let axis = index("gain (dB)", start);
+        let top = t
+            .iter()
+            .skip(axis + 1)
+            .take_while(|(_, _, s)| s.parse::<f64>().is_ok())
+            .fold(f64::MAX, |m, &(_, y, _)| m.min(y));
+        for entry in entries {
+            let k = index(entry, start);
+            assert!(k < axis, "{caption}: {entry} is not in the panel's legend");
+            assert!(
+                t[k].1 + 16.0 < top,
+                "{caption}: {entry} at y {} overlaps the chart (top {top})",
+                t[k].1
+            );
+        }
+    }
+    // The attenuation limit is dashed in the chart, so its legend swatch is dashed too: short
+    // segments of the chart's width and dash length on the line of the legend text.
+    let limit = index("attenuation limit, -50 dB", 0);
+    let line_y = t[limit].1 + 8.0;
+    let segments: Vec<(f64, f64)> = svg
+        .split("<polyline")
+        .skip(1)
+        .filter(|p| p.contains("stroke=\"#3C3C3C\"") && p.contains("stroke-width=\"2\""))
+        .filter_map(|p| {
+            let points = p.split_once("points=\"")?.1.split_once('"')?.0;
+            let xy: Vec<f64> = points
+                .split([' ', ','])
+                .filter_map(|v| v.parse().ok())
+                .collect();
+            match xy.as_slice() {
+                [x0, y0, x1, y1] if *y0 == line_y && *y1 == line_y => Some((*x0, *x1)),
+                _ => None,
+            }
+        })
+        .collect();
+    assert!(segments.len() >= 3, "no dashed legend swatch: {segments:?}");
+    assert!(segments.iter().all(|(a, b)| b - a <= 8.0), "{segments:?}");
+}
+
+#[test]
+fn the_impulse_response_shows_codes_for_fixed_point() {
+    let dir = scratch();
+    let spec = [
+        "--band",
+        "lowpass",
+        "--rate",
+        "1000",
+        "--edges",
+        "100,200",
+        "--attenuation",
+        "40",
+    ];
+    let mut q15 = spec.to_vec();
+    q15.extend(["--format", "q15", "--json"]);
+    let svg = plot_svg(dir.path(), &q15);
+    let l = labels(&svg);
+    assert!(l.iter().any(|t| t == "tap code (value x 32768)"), "{l:?}");
+    // The codes of the largest tap appear as whole numbers on the axis, not fractions below 1.
+    let axis = l
+        .iter()
+        .position(|t| t == "tap code (value x 32768)")
+        .unwrap_or(0);
+    let ticks: Vec<f64> = l
+        .iter()
+        .skip(axis + 1)
+        .filter_map(|t| t.parse().ok())
+        .collect();
+    assert!(ticks.iter().any(|&v| v >= 1000.0), "{ticks:?}");
+    assert!(ticks.iter().all(|v| v.fract() == 0.0), "{ticks:?}");
+    let mut f32 = spec.to_vec();
+    f32.extend(["--format", "f32"]);
+    let l = labels(&plot_svg(dir.path(), &f32));
+    assert!(l.iter().any(|t| t == "tap value"), "{l:?}");
+}

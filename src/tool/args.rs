@@ -5,6 +5,7 @@ use crate::tool::failure::Failure;
 use crate::tool::input::capture;
 use crate::tool::input::spec;
 use crate::tool::input::taps::{self, Adc, AlignArg, Format, RoundingArg, Written};
+use crate::tool::jobs::plot_axes::FreqScaleArg;
 use crate::tool::jobs::{check, design, plot, prepare, replay};
 use crate::tool::output::report::{self, Report};
 use clap::{Args, Parser, Subcommand};
@@ -124,6 +125,10 @@ struct PlotArgs {
     /// The SVG file to write (atomically).
     #[arg(long, value_name = "FILE")]
     out: PathBuf,
+    /// The frequency axes: logarithmic when the band edges span decades (auto: the axis
+    /// reaches at least 20 times the smallest edge), or always linear, or always logarithmic.
+    #[arg(long, value_enum, default_value = "auto")]
+    freq_scale: FreqScaleArg,
 }
 
 fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, Failure> {
@@ -169,6 +174,7 @@ fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, F
         sample_rate_hz: rate,
         adc,
         out: a.out.clone(),
+        freq_scale: a.freq_scale,
     })
 }
 
@@ -340,7 +346,7 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
         }
         Command::Plot(a) => match &a.taps {
             Some(table) => plot_table(a, table),
-            None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
+            None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out, a.freq_scale),
         },
         Command::Replay(a) => {
             let (replayed, out) = replay::run(&replay_request(a)?)?;
