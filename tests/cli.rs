@@ -295,25 +295,9 @@ fn design_from_the_toml_spec_reports_the_library_design() {
     assert_eq!(v["safe"], true);
 
     // The same spec as flags gives the same taps; the text names the figures.
-    let flags = [
-        "design",
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "5,50",
-        "--ripple",
-        "0.1",
-        "--attenuation",
-        "60",
-        "--format",
-        "q15",
-        "--adc-bits",
-        "12",
-        "--align",
-        "right",
-    ];
+    let mut flags = vec!["design"];
+    flags.extend(SILO_FLAGS);
+    flags.extend(["12", "--align", "right"]);
     let text = tool(&flags, &repo());
     assert_eq!(status(&text), 0, "{}", stderr(&text));
     let t = stdout(&text);

@@ -20,23 +20,21 @@ fn spec_file(dir: &Path, name: &str, rest: &str) -> String {
     name.to_string()
 }
 
+/// `design --spec` of such a file fails as bad input with `message`; returns its stderr.
+fn design_file_fails(dir: &Path, name: &str, rest: &str, message: &str) -> String {
+    let name = spec_file(dir, name, rest);
+    let out = tool(&["design", "--spec", &name], dir);
+    assert_bad_input(&out, message, &name);
+    stderr(&out)
+}
+
 // ---- point 5: design-size failures name the file, the key and the real limit ----
 
 #[test]
 fn a_spec_too_long_for_the_tool_names_the_flag_and_the_real_limit() {
     let dir = scratch();
     // 0.01 Hz of transition at 1 kHz: Kaiser's estimate is far beyond any limit.
-    let narrow = [
-        "design",
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "100,100.01",
-        "--attenuation",
-        "80",
-    ];
+    let narrow = words("design --band lowpass --rate 1000 --edges 100,100.01 --attenuation 80");
     let out = tool(&narrow, dir.path());
     assert_bad_input(&out, "command line: --edges: ", "too narrow, flags");
     let err = stderr(&out);
@@ -44,17 +42,7 @@ fn a_spec_too_long_for_the_tool_names_the_flag_and_the_real_limit() {
 
     // 0.5 Hz: an estimate of about 10 000 taps, beyond the tool's 2048.
     let out = tool(
-        &[
-            "design",
-            "--band",
-            "lowpass",
-            "--rate",
-            "1000",
-            "--edges",
-            "100,100.5",
-            "--attenuation",
-            "80",
-        ],
+        &words("design --band lowpass --rate 1000 --edges 100,100.5 --attenuation 80"),
         dir.path(),
     );
     assert_bad_input(&out, "command line: --edges: ", "beyond 2048, flags");
@@ -72,29 +60,22 @@ fn a_spec_too_long_for_the_tool_names_the_flag_and_the_real_limit() {
 #[test]
 fn a_spec_file_too_long_for_the_tool_names_the_file_line_and_key() {
     let dir = scratch();
-    let name = spec_file(
+    let err = design_file_fails(
         dir.path(),
         "narrow.toml",
         "ripple_db = 0.1\nattenuation_db = 80\nformat = \"f32\"\nedges_hz = [100, 100.01]\n",
+        "narrow.toml:6:12: edges_hz: ",
     );
-    let out = tool(&["design", "--spec", &name], dir.path());
-    // edges_hz is on line 6, its value at column 12.
-    assert_bad_input(&out, "narrow.toml:6:12: edges_hz: ", "too narrow, file");
-    let err = stderr(&out);
+    // (edges_hz is on line 6, its value at column 12.)
     assert!(err.contains("2048 taps") && !err.contains("65536"), "{err}");
 
-    let name = spec_file(
+    let err = design_file_fails(
         dir.path(),
         "deep.toml",
         "edges_hz = [100, 101]\nripple_db = 0.1\nattenuation_db = 90\nformat = \"q15\"\nmethod = \"equiripple\"\n",
-    );
-    let out = tool(&["design", "--spec", &name], dir.path());
-    assert_bad_input(
-        &out,
         "deep.toml:3:12: edges_hz: ",
-        "not met, equiripple file",
     );
-    assert!(stderr(&out).contains("1024 taps"), "{}", stderr(&out));
+    assert!(err.contains("1024 taps"), "{err}");
 }
 
 // ---- point 5: one text decoding for specs, tap tables and captures ----
@@ -224,40 +205,21 @@ fn a_semicolon_separated_capture_is_named_as_such() {
     // A spreadsheet export with decimal commas.
     write(dir.path(), "semi.csv", "time;adc\n0,000;806\n0,001;885\n");
     let out = tool(
-        &[
-            "replay",
-            "semi.csv",
-            "--taps",
-            "smooth.txt",
-            "--channels",
-            "adc",
-        ],
+        &words("replay semi.csv --taps smooth.txt --channels adc"),
         dir.path(),
     );
     assert_bad_input(&out, "semi.csv:1:5: ", "semicolon header");
-    assert!(
-        stderr(&out).contains("semicolon-separated"),
-        "{}",
-        stderr(&out)
-    );
+    assert_bad_input(&out, "semicolon-separated", "semicolon-separated");
 
     write(dir.path(), "semi.txt", "806;1\n885;2\n");
     let out = replay_column(dir.path(), "semi.txt", false);
     assert_bad_input(&out, "semi.txt:1:4: ", "semicolon rows");
-    assert!(
-        stderr(&out).contains("semicolon-separated"),
-        "{}",
-        stderr(&out)
-    );
+    assert_bad_input(&out, "semicolon-separated", "semicolon-separated");
 
     write(dir.path(), "semi_taps.txt", "8192;16384;8192\n");
     let out = tool(&["check", "semi_taps.txt"], dir.path());
     assert_bad_input(&out, "semi_taps.txt:1:5: ", "semicolon tap table");
-    assert!(
-        stderr(&out).contains("semicolon-separated"),
-        "{}",
-        stderr(&out)
-    );
+    assert_bad_input(&out, "semicolon-separated", "semicolon-separated");
 }
 
 // ---- point 6: emit writes only names rustc accepts ----
@@ -265,22 +227,9 @@ fn a_semicolon_separated_capture_is_named_as_such() {
 #[test]
 fn emit_refuses_names_rustc_would_reject() {
     let dir = scratch();
-    let base = [
-        "emit",
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "5,50",
-        "--attenuation",
-        "60",
-        "--format",
-        "f32",
-        "--out",
-        "taps.rs",
-        "--name",
-    ];
+    let base = words(
+        "emit --band lowpass --rate 1000 --edges 5,50 --attenuation 60 --format f32 --out taps.rs --name",
+    );
     for name in ["_", "r#TAPS", "1TAPS", "", "TAPS-2", "ÄTAPS"] {
         let mut args = base.to_vec();
         args.push(name);
@@ -292,23 +241,9 @@ fn emit_refuses_names_rustc_would_reject() {
         );
     }
     let out = tool(
-        &[
-            "prepare",
-            "--band",
-            "lowpass",
-            "--rate",
-            "1000",
-            "--edges",
-            "5,50",
-            "--attenuation",
-            "60",
-            "--capture",
-            "none.csv",
-            "--out-dir",
-            "job",
-            "--name",
-            "_",
-        ],
+        &words(
+            "prepare --band lowpass --rate 1000 --edges 5,50 --attenuation 60 --capture none.csv --out-dir job --name _",
+        ),
         dir.path(),
     );
     assert_bad_input(&out, "command line: --name: ", "prepare _");
@@ -323,22 +258,6 @@ fn emit_refuses_names_rustc_would_reject() {
 
 // ---- point 7: an ADC narrower than its word needs its alignment; reports say it ----
 
-const SILO_FLAGS: [&str; 13] = [
-    "--band",
-    "lowpass",
-    "--rate",
-    "1000",
-    "--edges",
-    "5,50",
-    "--ripple",
-    "0.1",
-    "--attenuation",
-    "60",
-    "--format",
-    "q15",
-    "--adc-bits",
-];
-
 #[test]
 fn a_narrow_adc_without_its_alignment_is_refused() {
     let dir = scratch();
@@ -347,10 +266,10 @@ fn a_narrow_adc_without_its_alignment_is_refused() {
     args.push("12");
     let out = tool(&args, dir.path());
     assert_bad_input(&out, "command line: --align: ", "design flags");
-    assert!(
-        stderr(&out).contains("12-bit ADC in 16-bit samples"),
-        "{}",
-        stderr(&out)
+    assert_bad_input(
+        &out,
+        "12-bit ADC in 16-bit samples",
+        "12-bit ADC in 16-bit samples",
     );
 
     write(dir.path(), "smooth.txt", SMOOTHER);
@@ -358,42 +277,24 @@ fn a_narrow_adc_without_its_alignment_is_refused() {
     assert_bad_input(&out, "command line: --align: ", "check");
     write(dir.path(), "c.txt", "5\n7\n");
     let out = tool(
-        &[
-            "replay",
-            "c.txt",
-            "--taps",
-            "smooth.txt",
-            "--adc-bits",
-            "12",
-        ],
+        &words("replay c.txt --taps smooth.txt --adc-bits 12"),
         dir.path(),
     );
     assert_bad_input(&out, "command line: --align: ", "replay");
     let out = tool(
-        &[
-            "plot",
-            "--taps",
-            "smooth.txt",
-            "--rate",
-            "1000",
-            "--adc-bits",
-            "12",
-            "--out",
-            "p.svg",
-        ],
+        &words("plot --taps smooth.txt --rate 1000 --adc-bits 12 --out p.svg"),
         dir.path(),
     );
     assert_bad_input(&out, "command line: --align: ", "plot table");
     assert!(!dir.path().join("p.svg").exists());
 
     // The file: the place of adc_bits, and the key to add.
-    let name = spec_file(
+    design_file_fails(
         dir.path(),
         "silo.toml",
         "edges_hz = [5, 50]\nripple_db = 0.1\nattenuation_db = 60\nformat = \"q15\"\nadc_bits = 12\n",
+        "silo.toml:7:12: expected adc_align = ",
     );
-    let out = tool(&["design", "--spec", &name], dir.path());
-    assert_bad_input(&out, "silo.toml:7:12: expected adc_align = ", "spec file");
 
     // The whole word needs none.
     let out = tool(&["check", "smooth.txt", "--adc-bits", "16"], dir.path());
@@ -542,16 +443,7 @@ fn a_2_mhz_plot_reads_in_khz_and_mhz_with_no_long_numbers() {
 fn bands_spanning_decades_get_a_log_frequency_axis_and_an_option_overrides_it() {
     let dir = scratch();
     // 0–20 Hz at 1 kHz: a sliver on a linear axis.
-    let lowpass = [
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "20,50",
-        "--attenuation",
-        "60",
-    ];
+    let lowpass = words("--band lowpass --rate 1000 --edges 20,50 --attenuation 60");
     let svg = plot_svg(dir.path(), &lowpass);
     let l = labels(&svg);
     assert!(
@@ -564,16 +456,7 @@ fn bands_spanning_decades_get_a_log_frequency_axis_and_an_option_overrides_it() 
     // 2 MHz, a bandpass from 20 kHz: labels in Hz, kHz and MHz on one log axis.
     let svg = plot_svg(
         dir.path(),
-        &[
-            "--band",
-            "bandpass",
-            "--rate",
-            "2000000",
-            "--edges",
-            "5000,20000,100000,150000",
-            "--attenuation",
-            "50",
-        ],
+        &words("--band bandpass --rate 2000000 --edges 5000,20000,100000,150000 --attenuation 50"),
     );
     let l = labels(&svg);
     for tick in ["100 Hz", "1 kHz", "100 kHz", "1 MHz"] {
@@ -584,17 +467,7 @@ fn bands_spanning_decades_get_a_log_frequency_axis_and_an_option_overrides_it() 
     let l = labels(&plot_svg(dir.path(), &linear));
     assert!(!l.iter().any(|t| t.contains("log scale")), "{l:?}");
     assert!(l.iter().any(|t| t == "frequency (Hz)"), "{l:?}");
-    let mut log = [
-        "--band",
-        "highpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "100,150",
-        "--attenuation",
-        "60",
-    ]
-    .to_vec();
+    let mut log = words("--band highpass --rate 1000 --edges 100,150 --attenuation 60");
     let l = labels(&plot_svg(dir.path(), &log));
     assert!(
         !l.iter().any(|t| t.contains("log scale")),
@@ -610,16 +483,7 @@ fn legends_sit_above_their_charts_and_the_close_up_has_its_own() {
     let dir = scratch();
     let svg = plot_svg(
         dir.path(),
-        &[
-            "--band",
-            "bandpass",
-            "--rate",
-            "1000",
-            "--edges",
-            "50,80,150,200",
-            "--attenuation",
-            "50",
-        ],
+        &words("--band bandpass --rate 1000 --edges 50,80,150,200 --attenuation 50"),
     );
     let t = texts(&svg);
     let index = |what: &str, from: usize| {
@@ -689,16 +553,7 @@ fn legends_sit_above_their_charts_and_the_close_up_has_its_own() {
 #[test]
 fn the_impulse_response_shows_codes_for_fixed_point() {
     let dir = scratch();
-    let spec = [
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "100,200",
-        "--attenuation",
-        "40",
-    ];
+    let spec = words("--band lowpass --rate 1000 --edges 100,200 --attenuation 40");
     let mut q15 = spec.to_vec();
     q15.extend(["--format", "q15", "--json"]);
     let svg = plot_svg(dir.path(), &q15);

