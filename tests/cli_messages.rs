@@ -196,6 +196,14 @@ fn a_binary_byte_is_refused_at_its_line_column_and_offset() {
         "bin.csv:3:2: expected UTF-8 text, found byte 0xC3 at byte offset 5",
         "binary capture",
     );
+    // A NUL is valid UTF-8: the row that holds it fails, and the NUL is named.
+    fs::write(dir.path().join("nul.csv"), b"5\n6\n7\x008\n").unwrap_or_default();
+    let out = replay_column(dir.path(), "nul.csv", false);
+    assert_bad_input(
+        &out,
+        "nul.csv:3:2: expected UTF-8 text, found a NUL byte at byte offset 5",
+        "NUL in capture",
+    );
 }
 
 #[test]

@@ -48,6 +48,8 @@ pub struct Capture {
     line: String,
     /// Its 1-based number.
     number: usize,
+    /// The byte offset in the file where it starts.
+    line_start: u64,
     spans: Vec<Span>,
     /// Fields per row and the line that set it.
     width: Option<(usize, usize)>,
@@ -78,6 +80,7 @@ impl Capture {
             raw: Vec::new(),
             line: String::new(),
             number: 0,
+            line_start: 0,
             spans: Vec::new(),
             width: None,
             fields: Vec::new(),
@@ -119,9 +122,7 @@ impl Capture {
                         [one] => c.fields.push(*one),
                         [] => {
                             let header: Vec<&str> = (0..c.spans.len()).map(|i| c.text(i)).collect();
-                            return Err(Failure::at(
-                                path,
-                                c.number,
+                            return Err(c.fail_here(
                                 1,
                                 format!(
                                     "expected a column named {name:?} in the header, found {}",
@@ -168,6 +169,8 @@ impl Capture {
     /// Reads up to the next row with fields, checks its width; false at the end of the file.
     fn advance(&mut self) -> Result<bool, Failure> {
         loop {
+            // The last line's text becomes the buffer for this one: no allocation per line.
+            self.raw = std::mem::take(&mut self.line).into_bytes();
             self.raw.clear();
             let read = self.reader.read_until(b'\n', &mut self.raw).map_err(|e| {
                 Failure::at(
@@ -181,23 +184,17 @@ impl Capture {
                 return Ok(false);
             }
             self.number += 1;
-            let start = self.bytes_read;
+            self.line_start = self.bytes_read;
             self.bytes_read += read as u64;
             while self.raw.ends_with(b"\n") || self.raw.ends_with(b"\r") {
                 self.raw.pop();
             }
-            self.line.clear();
-            self.line.push_str(text::decode_line(
-                &self.path,
-                self.number,
-                start,
-                &self.raw,
-            )?);
+            let raw = std::mem::take(&mut self.raw);
+            self.line = text::decode_line(&self.path, self.number, self.line_start, raw)?;
             let trimmed = self.line.trim();
             if trimmed.is_empty() || trimmed.starts_with('#') {
                 continue;
             }
-            text::refuse_semicolons(&self.path, self.number, &self.line)?;
             split(&self.line, &mut self.spans);
             match self.width {
                 None => {
@@ -211,9 +208,7 @@ impl Capture {
                         Some(_) => self.column(n),
                         None => self.line.chars().count() + 1,
                     };
-                    return Err(Failure::at(
-                        &self.path,
-                        self.number,
+                    return Err(self.fail_here(
                         column,
                         format!(
                             "expected {n} field(s) as on line {first}, found {}",
@@ -227,12 +222,20 @@ impl Capture {
         }
     }
 
+    /// A failure at `column` of the current line — unless its text explains it better (a NUL
+    /// byte, semicolons between the fields), which these checks leave to the failure path so
+    /// that a row that parses costs no extra scan.
+    fn fail_here(&self, column: usize, what: impl std::fmt::Display) -> Failure {
+        match text::explain(&self.path, self.number, self.line_start, &self.line) {
+            Err(better) => better,
+            Ok(()) => Failure::at(&self.path, self.number, column, what),
+        }
+    }
+
     /// The first row must reach the highest column asked for.
     fn check_column(&self, column: usize) -> Result<(), Failure> {
         if column > self.spans.len() {
-            return Err(Failure::at(
-                &self.path,
-                self.number,
+            return Err(self.fail_here(
                 1,
                 format!(
                     "expected at least {column} field(s) for --column {column}, found {}",
@@ -258,7 +261,7 @@ impl Capture {
 
     fn sample(&self, index: usize) -> Result<f64, Failure> {
         let text = self.text(index);
-        let fail = |what: String| Failure::at(&self.path, self.number, self.column(index), what);
+        let fail = |what: String| self.fail_here(self.column(index), what);
         match &self.kind {
             Kind::Codes { min, max, what } => match text.parse::<i64>() {
                 Ok(v) if (*min..=*max).contains(&v) => Ok(v as f64),
