@@ -279,7 +279,7 @@ mod tests {
     #[test]
     fn a_line_that_failed_is_explained_by_its_nul_or_semicolon() {
         assert!(explain(path(), 4, 100, "12 13").is_ok());
-        let e = explain(path(), 4, 100, "12\013")
+        let e = explain(path(), 4, 100, "12\u{0}13")
             .err()
             .map(|e| e.to_string());
         assert_eq!(
