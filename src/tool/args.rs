@@ -5,6 +5,7 @@ use crate::tool::failure::Failure;
 use crate::tool::input::capture;
 use crate::tool::input::spec;
 use crate::tool::input::taps::{self, Adc, AlignArg, Format, RoundingArg, Written};
+use crate::tool::jobs::plot_axes::FreqScaleArg;
 use crate::tool::jobs::{check, design, plot, prepare, replay};
 use crate::tool::output::atomic::{self, Outputs};
 use crate::tool::output::report::{self, Report};
@@ -64,17 +65,15 @@ struct AdcArgs {
     /// ADC resolution in bits (default: the whole sample word).
     #[arg(long, value_name = "BITS")]
     adc_bits: Option<u32>,
-    /// Where the ADC's bits sit in the sample word.
-    #[arg(long, value_enum, default_value = "left")]
-    align: AlignArg,
+    /// Where the ADC's bits sit in the sample word: required when --adc-bits is narrower than
+    /// the sample word.
+    #[arg(long, value_enum)]
+    align: Option<AlignArg>,
 }
 
 impl AdcArgs {
-    fn adc(&self) -> Adc {
-        Adc {
-            bits: self.adc_bits,
-            align: self.align,
-        }
+    fn adc(&self, format: Format) -> Result<Adc, Failure> {
+        Adc::from_flags(self.adc_bits, self.align, format)
     }
 }
 
@@ -162,6 +161,10 @@ struct PlotArgs {
     /// The SVG file to write (atomically).
     #[arg(long, value_name = "FILE")]
     out: PathBuf,
+    /// The frequency axes: logarithmic when the band edges span decades (auto: the axis
+    /// reaches at least 20 times the smallest edge), or always linear, or always logarithmic.
+    #[arg(long, value_enum, default_value = "auto")]
+    freq_scale: FreqScaleArg,
 }
 
 fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, Failure> {
@@ -188,11 +191,7 @@ fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, F
             }
             (
                 s.format,
-                AdcArgs {
-                    adc_bits: s.adc_bits,
-                    align: s.align,
-                }
-                .adc(),
+                Adc::from_flags(s.adc_bits, s.align, s.format)?,
                 rate,
             )
         }
@@ -211,6 +210,7 @@ fn plot_table(a: &PlotArgs, table: &std::path::Path) -> Result<report::Report, F
         sample_rate_hz: rate,
         adc,
         out: a.out.clone(),
+        freq_scale: a.freq_scale,
     })
 }
 
@@ -284,8 +284,9 @@ fn replay_request(a: &ReplayArgs) -> Result<replay::Request, Failure> {
         }
         (None, Some(path)) => {
             let format = a.format.unwrap_or(Format::Q15);
+            let adc = a.adc.adc(format)?;
             let (taps, ideal) = table_taps(path, format, a.written)?;
-            (taps, ideal, format, a.adc.adc())
+            (taps, ideal, format, adc)
         }
         (None, None) => {
             return Err(Failure::argument(
@@ -384,7 +385,7 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
         }
         Command::Plot(a) => match &a.taps {
             Some(table) => plot_table(a, table),
-            None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out),
+            None => plot::plot(&design::design(a.spec.chosen()?)?, &a.out, a.freq_scale),
         },
         Command::Replay(a) => {
             let mut outputs = Outputs::new();
@@ -399,7 +400,7 @@ pub fn run(cli: &Cli) -> Result<Report, Failure> {
             table: a.table.clone(),
             format: a.format,
             written: a.written,
-            adc: a.adc.adc(),
+            adc: a.adc.adc(a.format)?,
             rounding: a.rounding.into(),
             worst_case: a.worst_case.clone(),
         }),

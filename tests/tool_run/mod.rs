@@ -1,5 +1,6 @@
-//! What the host tool's integration tests share (`tests/cli.rs`, `tests/cli_files.rs`): run the
-//! binary, read its exit status and output, and look at the files it left.
+//! Running the built tool as a user runs it, shared by the CLI test files (`tests/cli.rs`,
+//! `tests/cli_files.rs`, `tests/cli_messages.rs`): the command, its exit status and output,
+//! scratch directories, the files it left, and the one-line failure check.
 #![allow(dead_code)]
 
 use serde_json::Value;
@@ -105,6 +106,12 @@ pub fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
     path
 }
 
+/// The words of a command line written as one string (no quoting: for arguments without
+/// spaces).
+pub fn words(line: &str) -> Vec<&str> {
+    line.split_whitespace().collect()
+}
+
 /// The run failed on bad input: exit 2 and exactly one line on stderr that contains `message`.
 pub fn assert_bad_input(out: &Output, message: &str, what: &str) {
     assert_eq!(status(out), 2, "{what}: {}", stdout(out));
@@ -125,3 +132,21 @@ pub fn assert_files(dir: &Path, expected: &[&str]) {
     expected.sort();
     assert_eq!(names, expected);
 }
+
+/// The invented silo-scale spec of examples/tool/silo_scale.toml as flags, up to --adc-bits
+/// (its value and the alignment follow).
+pub const SILO_FLAGS: [&str; 13] = [
+    "--band",
+    "lowpass",
+    "--rate",
+    "1000",
+    "--edges",
+    "5,50",
+    "--ripple",
+    "0.1",
+    "--attenuation",
+    "60",
+    "--format",
+    "q15",
+    "--adc-bits",
+];

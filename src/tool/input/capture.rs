@@ -5,10 +5,10 @@
 //! file, line and column.
 
 use crate::tool::failure::Failure;
-use crate::tool::input::file;
+use crate::tool::input::{file, text};
 use std::format;
 use std::fs::File;
-use std::io::BufReader;
+use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
 use std::prelude::rust_2024::*;
 
@@ -42,11 +42,14 @@ struct Span {
 pub struct Capture {
     path: PathBuf,
     reader: BufReader<File>,
-    /// The current line, without its line break; `raw` its bytes as read.
-    line: String,
+    /// The current line's bytes as read, without its line break.
     raw: Vec<u8>,
+    /// The current line, without its line break.
+    line: String,
     /// Its 1-based number.
     number: usize,
+    /// The byte offset in the file where it starts.
+    line_start: u64,
     spans: Vec<Span>,
     /// Fields per row and the line that set it.
     width: Option<(usize, usize)>,
@@ -65,12 +68,18 @@ impl Capture {
     pub fn open(path: &Path, pick: &Pick, header: bool, kind: Kind) -> Result<Capture, Failure> {
         let file = file::open(path)?;
         let total_bytes = file.metadata().map(|m| m.len()).unwrap_or(0);
+        let mut reader = BufReader::with_capacity(1 << 16, file);
+        let head = reader
+            .fill_buf()
+            .map_err(|e| Failure::file(path, format!("could not read: {e}")))?;
+        text::refuse_utf16(path, head)?;
         let mut c = Capture {
             path: path.to_path_buf(),
-            reader: BufReader::with_capacity(1 << 16, file),
-            line: String::new(),
+            reader,
             raw: Vec::new(),
+            line: String::new(),
             number: 0,
+            line_start: 0,
             spans: Vec::new(),
             width: None,
             fields: Vec::new(),
@@ -112,9 +121,7 @@ impl Capture {
                         [one] => c.fields.push(*one),
                         [] => {
                             let header: Vec<&str> = (0..c.spans.len()).map(|i| c.text(i)).collect();
-                            return Err(Failure::at(
-                                path,
-                                c.number,
+                            return Err(c.fail_here(
                                 1,
                                 format!(
                                     "expected a column named {name:?} in the header, found {}",
@@ -161,29 +168,22 @@ impl Capture {
     /// Reads up to the next row with fields, checks its width; false at the end of the file.
     fn advance(&mut self) -> Result<bool, Failure> {
         loop {
-            self.line.clear();
+            // The last line's text becomes the buffer for this one: no allocation per line.
+            self.raw = std::mem::take(&mut self.line).into_bytes();
             self.raw.clear();
             let read =
                 file::read_line(&mut self.reader, &mut self.raw, &self.path, self.number + 1)?;
             if read == 0 {
                 return Ok(false);
             }
-            match std::str::from_utf8(&self.raw) {
-                Ok(text) => self.line.push_str(text),
-                Err(e) => {
-                    return Err(Failure::at(
-                        &self.path,
-                        self.number + 1,
-                        1,
-                        format!("expected UTF-8 text ({e})"),
-                    ));
-                }
-            }
             self.number += 1;
+            self.line_start = self.bytes_read;
             self.bytes_read += read as u64;
-            while self.line.ends_with(['\n', '\r']) {
-                self.line.pop();
+            while self.raw.ends_with(b"\n") || self.raw.ends_with(b"\r") {
+                self.raw.pop();
             }
+            let raw = std::mem::take(&mut self.raw);
+            self.line = text::decode_line(&self.path, self.number, self.line_start, raw)?;
             let trimmed = self.line.trim();
             if trimmed.is_empty() || trimmed.starts_with('#') {
                 continue;
@@ -201,9 +201,7 @@ impl Capture {
                         Some(_) => self.column(n),
                         None => self.line.chars().count() + 1,
                     };
-                    return Err(Failure::at(
-                        &self.path,
-                        self.number,
+                    return Err(self.fail_here(
                         column,
                         format!(
                             "expected {n} field(s) as on line {first}, found {}",
@@ -217,12 +215,20 @@ impl Capture {
         }
     }
 
+    /// A failure at `column` of the current line — unless its text explains it better (a NUL
+    /// byte, semicolons between the fields), which these checks leave to the failure path so
+    /// that a row that parses costs no extra scan.
+    fn fail_here(&self, column: usize, what: impl std::fmt::Display) -> Failure {
+        match text::explain(&self.path, self.number, self.line_start, &self.line) {
+            Err(better) => better,
+            Ok(()) => Failure::at(&self.path, self.number, column, what),
+        }
+    }
+
     /// The first row must reach the highest column asked for.
     fn check_column(&self, column: usize) -> Result<(), Failure> {
         if column > self.spans.len() {
-            return Err(Failure::at(
-                &self.path,
-                self.number,
+            return Err(self.fail_here(
                 1,
                 format!(
                     "expected at least {column} field(s) for --column {column}, found {}",
@@ -248,7 +254,7 @@ impl Capture {
 
     fn sample(&self, index: usize) -> Result<f64, Failure> {
         let text = self.text(index);
-        let fail = |what: String| Failure::at(&self.path, self.number, self.column(index), what);
+        let fail = |what: String| self.fail_here(self.column(index), what);
         match &self.kind {
             Kind::Codes { min, max, what } => match text.parse::<i64>() {
                 Ok(v) if (*min..=*max).contains(&v) => Ok(v as f64),

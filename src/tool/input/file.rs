@@ -167,15 +167,9 @@ pub fn read_bytes(path: &Path) -> Result<Vec<u8>, Failure> {
     Ok(bytes)
 }
 
-/// The whole of a small input as UTF-8 text ([`read_bytes`], then decoded); a byte that is not
-/// UTF-8 is reported at its line and column.
+/// The whole of a small input as text: [`read_bytes`], then the one decoding of
+/// [`text::decode`](crate::tool::input::text::decode) (UTF-8 byte-order mark dropped, UTF-16
+/// refused by name, a byte that is not text refused at its line, column and byte offset).
 pub fn read_text(path: &Path) -> Result<String, Failure> {
-    String::from_utf8(read_bytes(path)?).map_err(|e| {
-        let (line, column) = {
-            let good = e.utf8_error().valid_up_to();
-            let prefix = String::from_utf8_lossy(e.as_bytes().get(..good).unwrap_or(&[]));
-            crate::tool::failure::line_column(&prefix, good)
-        };
-        Failure::at(path, line, column, "expected UTF-8 text")
-    })
+    crate::tool::input::text::decode(path, read_bytes(path)?)
 }

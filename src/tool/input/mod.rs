@@ -7,3 +7,4 @@ pub mod file;
 pub mod spec;
 pub mod table;
 pub mod taps;
+pub(crate) mod text;

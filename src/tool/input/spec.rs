@@ -11,7 +11,7 @@
 //! attenuation_db = 60        # smallest stopband attenuation
 //! format = "q15"             # q15 | q31 | f32
 //! adc_bits = 12              # optional: the ADC's resolution (default: the whole sample word)
-//! adc_align = "right"        # optional: left | right (default left)
+//! adc_align = "right"        # left | right: required when adc_bits is below the sample word
 //! method = "equiripple"      # optional: window (Kaiser window, the default) | equiripple
 //! length = 61                # optional, equiripple only: exactly this many taps instead of
 //!                            # the shortest that meets the spec
@@ -19,7 +19,7 @@
 
 use crate::design::{MAX_EQUIRIPPLE_TAPS, Shape, Spec};
 use crate::tool::failure::{Failure, line_column};
-use crate::tool::input::taps::{Adc, AlignArg, Format};
+use crate::tool::input::taps::{Adc, AlignArg, Format, alignment_needed};
 use clap::{Args, ValueEnum};
 use serde::Deserialize;
 use std::format;
@@ -122,9 +122,10 @@ pub struct SpecArgs {
     /// ADC resolution in bits (default: the whole sample word).
     #[arg(long, value_name = "BITS")]
     pub adc_bits: Option<u32>,
-    /// Where the ADC's bits sit in the sample word.
-    #[arg(long, value_enum, default_value = "left")]
-    pub align: AlignArg,
+    /// Where the ADC's bits sit in the sample word: required when --adc-bits is narrower than
+    /// the sample word.
+    #[arg(long, value_enum)]
+    pub align: Option<AlignArg>,
     /// Design method: a Kaiser window, or equiripple (Parks–McClellan).
     #[arg(long, value_enum, default_value = "window")]
     pub method: Method,
@@ -150,6 +151,46 @@ pub struct Chosen {
     pub method: Method,
     /// Equiripple only: the length asked for (None: the shortest that meets the spec).
     pub length: Option<usize>,
+    /// Where the band edges were given: a design that would need too many taps is reported
+    /// there, since the transition widths set the length.
+    pub edges_at: Origin,
+    /// Where the stopband attenuation was given: a depth the format cannot reach is reported
+    /// there.
+    pub attenuation_at: Origin,
+}
+
+/// Where a value of the spec was given, kept with the checked spec for messages about what
+/// the value leads to later (the design).
+#[derive(Debug, Clone)]
+pub enum Origin {
+    /// A command-line flag.
+    Flag(&'static str),
+    /// A key of a spec file, at the 1-based line and column of its value.
+    File {
+        /// The spec file.
+        path: PathBuf,
+        /// The key.
+        key: &'static str,
+        /// 1-based line of the value.
+        line: usize,
+        /// 1-based column of the value.
+        column: usize,
+    },
+}
+
+impl Origin {
+    /// A failure at this place: `command line: --flag: what` or `file:line:column: key: what`.
+    pub fn fail(&self, what: impl std::fmt::Display) -> Failure {
+        match self {
+            Origin::Flag(flag) => Failure::argument(flag, what),
+            Origin::File {
+                path,
+                key,
+                line,
+                column,
+            } => Failure::at(path, *line, *column, format!("{key}: {what}")),
+        }
+    }
 }
 
 /// Where a value came from, for error messages.
@@ -163,6 +204,22 @@ enum Place<'a> {
 }
 
 impl Place<'_> {
+    /// The place kept for later messages, with the file's key.
+    fn origin(&self, key: &'static str) -> Origin {
+        match self {
+            Place::Flag(flag) => Origin::Flag(flag),
+            Place::File { path, text, offset } => {
+                let (line, column) = line_column(text, *offset);
+                Origin::File {
+                    path: path.to_path_buf(),
+                    key,
+                    line,
+                    column,
+                }
+            }
+        }
+    }
+
     fn fail(&self, what: impl std::fmt::Display) -> Failure {
         match self {
             Place::Flag(flag) => Failure::argument(flag, what),
@@ -220,6 +277,7 @@ impl SpecArgs {
                 check(Parts {
                     band,
                     rate: (rate, Place::Flag("--rate")),
+                    align_place: Place::Flag("--align"),
                     edges,
                     edges_place: Place::Flag("--edges"),
                     ripple: (self.ripple, Place::Flag("--ripple")),
@@ -262,12 +320,12 @@ fn from_file(path: &Path) -> Result<Chosen, Failure> {
         }
     };
     let align = match &file.adc_align {
-        None => AlignArg::Left,
-        Some(a) => match a.get_ref().to_ascii_lowercase().as_str() {
+        None => None,
+        Some(a) => Some(match a.get_ref().to_ascii_lowercase().as_str() {
             "left" => AlignArg::Left,
             "right" => AlignArg::Right,
             _ => return Err(at(a.span().start).fail("expected adc_align = \"left\" or \"right\"")),
-        },
+        }),
     };
     let method = match &file.method {
         None => Method::Window,
@@ -294,6 +352,8 @@ fn from_file(path: &Path) -> Result<Chosen, Failure> {
         ),
         edges,
         edges_place: at(file.edges_hz.span().start),
+        // A missing adc_align is reported at adc_bits, the key that needs it.
+        align_place: at(file.adc_bits.as_ref().map_or(0, |b| b.span().start)),
         ripple: (*file.ripple_db.get_ref(), at(file.ripple_db.span().start)),
         attenuation: (
             *file.attenuation_db.get_ref(),
@@ -318,11 +378,12 @@ struct Parts<'a> {
     rate: (f64, Place<'a>),
     edges: Vec<(f64, Place<'a>)>,
     edges_place: Place<'a>,
+    align_place: Place<'a>,
     ripple: (f64, Place<'a>),
     attenuation: (f64, Place<'a>),
     format: Format,
     adc_bits: Option<(i64, Place<'a>)>,
-    align: AlignArg,
+    align: Option<AlignArg>,
     method: Method,
     length: Option<(i64, Place<'a>)>,
 }
@@ -391,6 +452,17 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
             u32::try_from(*bits).ok()
         }
     };
+    let align = match (bits, p.align) {
+        (Some(b), None) if b < word => {
+            let key = match p.align_place {
+                Place::Flag(_) => "--align left or --align right",
+                Place::File { .. } => "adc_align = \"left\" or \"right\"",
+            };
+            return Err(p.align_place.fail(alignment_needed(b, word, key)));
+        }
+        // For the whole word the alignment has no effect.
+        (_, align) => align.unwrap_or(AlignArg::Right),
+    };
     let e: Vec<f64> = p.edges.iter().map(|(e, _)| *e).collect();
     let edge = |k: usize| e.get(k).copied().unwrap_or(0.0);
     let shape = match p.band {
@@ -451,11 +523,10 @@ fn check(p: Parts) -> Result<Chosen, Failure> {
         band: p.band,
         edges: e,
         format: p.format,
-        adc: Adc {
-            bits,
-            align: p.align,
-        },
+        adc: Adc { bits, align },
         method: p.method,
         length,
+        edges_at: p.edges_place.origin("edges_hz"),
+        attenuation_at: p.attenuation.1.origin("attenuation_db"),
     })
 }

@@ -3,6 +3,7 @@
 //! Every data row must have as many fields as the first one.
 
 use crate::tool::failure::Failure;
+use crate::tool::input::text;
 use std::format;
 use std::path::Path;
 use std::prelude::rust_2024::*;
@@ -28,6 +29,7 @@ pub fn read_rows(path: &Path) -> Result<Vec<Vec<Field>>, Failure> {
         if trimmed.is_empty() || trimmed.starts_with('#') {
             continue;
         }
+        text::refuse_semicolons(path, line, raw)?;
         let fields = split(raw, line);
         if let Some(first) = rows.first() {
             if fields.len() != first.len() {

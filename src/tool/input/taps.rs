@@ -86,11 +86,48 @@ pub enum AlignArg {
 pub struct Adc {
     /// ADC resolution in bits (None: the whole sample word).
     pub bits: Option<u32>,
-    /// Where the ADC's bits sit in the sample word.
+    /// Where the ADC's bits sit in the sample word (of no account for the whole word).
     pub align: AlignArg,
 }
 
+/// Why an ADC narrower than its sample word needs its alignment said: `key` names the flag
+/// or the file key to add.
+pub fn alignment_needed(bits: u32, word_bits: u32, key: &str) -> String {
+    format!(
+        "expected {key} for a {bits}-bit ADC in {word_bits}-bit samples: where its bits sit in the word changes the input range, and so the headroom verdict (right-aligned is what most microcontroller ADC data registers deliver)"
+    )
+}
+
 impl Adc {
+    /// An ADC from flags: `align` must be given when `bits` is narrower than the sample word
+    /// of `format` (a silent default would decide the verdict).
+    ///
+    /// # Errors
+    /// A failure at `--align` when it is needed and missing.
+    pub fn from_flags(
+        bits: Option<u32>,
+        align: Option<AlignArg>,
+        format: Format,
+    ) -> Result<Adc, Failure> {
+        let word = format.word_bits();
+        match (bits, align) {
+            (Some(b), None) if b < word => Err(Failure::argument(
+                "--align",
+                alignment_needed(b, word, "--align left or --align right"),
+            )),
+            // For the whole word the alignment has no effect.
+            (bits, align) => Ok(Adc {
+                bits,
+                align: align.unwrap_or(AlignArg::Right),
+            }),
+        }
+    }
+
+    /// Whether the ADC fills the whole sample word (its alignment then has no effect).
+    pub fn whole_word(self, word_bits: u32) -> bool {
+        self.bits.is_none_or(|b| b >= word_bits)
+    }
+
     /// The input range of the ADC in a sample word of `word_bits` bits.
     ///
     /// # Errors
@@ -109,18 +146,35 @@ impl Adc {
         }
     }
 
+    /// The alignment as reports name it: `left`, `right`, or `whole word`.
+    pub fn align_name(self, word_bits: u32) -> &'static str {
+        match self.align {
+            _ if self.whole_word(word_bits) => "whole word",
+            AlignArg::Left => "left",
+            AlignArg::Right => "right",
+        }
+    }
+
     /// The ADC in words, for reports (`12-bit ADC, right-aligned in 16 bits`).
     pub fn describe(self, word_bits: u32) -> String {
         match self.bits {
-            None => format!("full {word_bits}-bit sample word"),
-            Some(bits) => format!(
-                "{bits}-bit ADC, {} in {word_bits} bits",
-                match self.align {
-                    AlignArg::Left => "left-aligned",
-                    AlignArg::Right => "right-aligned",
-                }
-            ),
+            Some(bits) if !self.whole_word(word_bits) => {
+                format!(
+                    "{bits}-bit ADC, {}-aligned in {word_bits} bits",
+                    self.align_name(word_bits)
+                )
+            }
+            _ => format!("full {word_bits}-bit sample word"),
         }
+    }
+
+    /// The ADC for JSON reports: its bits, the sample word and the alignment assumed.
+    pub fn json(self, word_bits: u32) -> serde_json::Value {
+        serde_json::json!({
+            "bits": self.bits.unwrap_or(word_bits),
+            "word_bits": word_bits,
+            "align": self.align_name(word_bits),
+        })
     }
 }
 

@@ -99,6 +99,7 @@ pub fn run(r: &Request) -> Result<Report, Failure> {
         "command": "check",
         "table": r.table.display().to_string(),
         "format": r.format.name(),
+        "adc": r.adc.json(word),
         "rounding": report::rounding_name(r.rounding),
         "headroom": report::headroom_json(&h, r.rounding),
         "error_bound_lsb": bound.map(|b| b.lsb()),

@@ -58,14 +58,28 @@ pub enum Taps {
 }
 
 fn library(e: impl Into<DesignError>) -> Failure {
+    Failure::plain(format!("design: {}", e.into()))
+}
+
+/// A Kaiser window design that the tool's limit stops, reported at the band edges (their
+/// transition widths set the length), or that quantization stops, reported at the
+/// attenuation; anything else as the library words it.
+fn window_failure(chosen: &Chosen, e: impl Into<DesignError>) -> Failure {
+    let at = &chosen.edges_at;
     match e.into() {
-        DesignError::Filter(Error::OutputLength { expected, .. }) => Failure::plain(format!(
-            "design: the spec needs {expected} taps, more than the tool's {MAX_TAPS}: expected a wider transition band or less attenuation"
+        DesignError::InvalidTransition => at.fail(format!(
+            "a transition band this narrow needs far more than the tool's {MAX_TAPS} taps (Kaiser window): expected a wider transition band or less attenuation"
         )),
-        DesignError::SpecNotMet { taps, .. } => Failure::plain(format!(
-            "design: no Kaiser design of up to {taps} taps meets the spec in this format: expected a coarser spec or a wider format"
+        DesignError::Filter(Error::OutputLength { expected, .. }) => at.fail(format!(
+            "the spec needs {expected} taps, more than the tool's {MAX_TAPS} taps (Kaiser window): expected a wider transition band or less attenuation"
         )),
-        other => Failure::plain(format!("design: {other}")),
+        // The Kaiser search stops short of the tool's limit when quantizing to the format
+        // sets a floor on the attenuation: the depth asked for is what fails.
+        DesignError::SpecNotMet { taps, .. } => chosen.attenuation_at.fail(format!(
+            "no Kaiser design of up to {taps} taps meets the spec in {} once quantized: expected less attenuation or a wider format",
+            chosen.format.name()
+        )),
+        other => library(other),
     }
 }
 
@@ -80,7 +94,9 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
     let spec = chosen.spec;
     match chosen.format {
         Format::F32 => {
-            let float = spec.kaiser::<MAX_TAPS>().map_err(library)?;
+            let float = spec
+                .kaiser::<MAX_TAPS>()
+                .map_err(|e| window_failure(&chosen, e))?;
             let how = How::Window {
                 estimated_len: float.estimated_len,
                 beta: float.beta,
@@ -89,7 +105,9 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
         }
         Format::Q15 | Format::Q31 => {
             let (float, codes, measured, margin_db) = if chosen.format == Format::Q15 {
-                let d = spec.kaiser_fixed::<i16, MAX_TAPS>().map_err(library)?;
+                let d = spec
+                    .kaiser_fixed::<i16, MAX_TAPS>()
+                    .map_err(|e| window_failure(&chosen, e))?;
                 (
                     d.float,
                     Codes::Q15(d.taps.to_vec()),
@@ -97,7 +115,9 @@ fn window_design(chosen: Chosen) -> Result<Designed, Failure> {
                     d.margin_db,
                 )
             } else {
-                let d = spec.kaiser_fixed::<i32, MAX_TAPS>().map_err(library)?;
+                let d = spec
+                    .kaiser_fixed::<i32, MAX_TAPS>()
+                    .map_err(|e| window_failure(&chosen, e))?;
                 (
                     d.float,
                     Codes::Q31(d.taps.to_vec()),
@@ -180,13 +200,18 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
     // With a length given: that one design, whatever it measures (the report says if it
     // misses). Otherwise the library's search: the shortest that meets the spec, and for fixed
     // point the shortest whose quantized taps meet it.
-    let given = |e: DesignError| match (chosen.length, e) {
+    let given = |e: DesignError| {
+        match (chosen.length, e) {
         (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
-        (None, DesignError::SpecNotMet { taps }) => Failure::plain(format!(
-            "design: no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
+        (None, DesignError::SpecNotMet { taps }) => chosen.edges_at.fail(format!(
+            "no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
             chosen.format.name()
         )),
+        (None, DesignError::InvalidTransition) => chosen.edges_at.fail(format!(
+            "a transition band this narrow needs far more than the library's {MAX_EQUIRIPPLE_TAPS} taps (equiripple): expected a wider transition band, less attenuation, or method window"
+        )),
         (None, e) => library(e),
+    }
     };
     let how = |float: &EquirippleDesign| How::Equiripple {
         estimated_len: float.estimated_len,
@@ -378,10 +403,12 @@ impl Designed {
                 "attenuation_db": s.stopband_attenuation_db,
                 "format": c.format.name(),
                 "adc_bits": c.adc.bits,
+                "adc_align": c.adc.align_name(c.format.word_bits()),
                 "method": c.method.name(),
                 "length": c.length,
             },
             "taps": self.len(),
+            "adc": c.adc.json(c.format.word_bits()),
             "method": c.method.name(),
             "length_estimate": match &self.how {
                 How::Window { estimated_len, .. } => Some(*estimated_len),
@@ -457,21 +484,42 @@ pub fn report(d: &Designed) -> Report {
     }
 }
 
-/// A Rust identifier for a `static`: upper-case letters, digits and underscores.
+/// Rust's keywords (strict, reserved, and the 2018 and 2024 editions' additions), for
+/// [`check_name`]'s test that an upper-case name can never be one.
+#[cfg(test)]
+const KEYWORDS: [&str; 53] = [
+    "as", "async", "await", "break", "const", "continue", "crate", "dyn", "else", "enum", "extern",
+    "false", "fn", "for", "gen", "if", "impl", "in", "let", "loop", "match", "mod", "move", "mut",
+    "pub", "ref", "return", "self", "Self", "static", "struct", "super", "trait", "true", "try",
+    "type", "unsafe", "use", "where", "while", "abstract", "become", "box", "do", "final", "macro",
+    "override", "priv", "typeof", "unsized", "virtual", "yield", "_",
+];
+
+/// A name for the emitted `static`: an upper-case Rust identifier (ASCII letters A–Z, digits
+/// and underscores, not starting with a digit), as rustc's `non_upper_case_globals` lint
+/// wants. Rust's keywords are lower-case or mixed-case, so such a name is never one — except
+/// `_`, which is Rust's placeholder and refused here. Raw identifiers (`r#…`) are not needed
+/// for any upper-case name and are refused with the rest.
 pub fn check_name(name: &str) -> Result<(), Failure> {
+    let upper = |c: char| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '_';
     let ok = name
         .chars()
         .next()
         .is_some_and(|c| c.is_ascii_uppercase() || c == '_')
-        && name
-            .chars()
-            .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '_');
-    if ok {
+        && name.chars().all(upper);
+    if name == "_" {
+        Err(Failure::argument(
+            "--name",
+            "expected an upper-case Rust identifier like SMOOTH_TAPS, found \"_\" (Rust's placeholder, which rustc refuses as the name of a static)",
+        ))
+    } else if ok {
         Ok(())
     } else {
         Err(Failure::argument(
             "--name",
-            format!("expected an upper-case Rust identifier like SMOOTH_TAPS, found {name:?}"),
+            format!(
+                "expected an upper-case Rust identifier like SMOOTH_TAPS (A-Z, 0-9 and _, not starting with a digit), found {name:?}"
+            ),
         ))
     }
 }
@@ -490,4 +538,27 @@ pub fn emit(d: &Designed, out: &Path, name: &str, command: &str) -> Result<Repor
         json,
         status: status(d),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn no_keyword_passes_as_a_name() {
+        for k in KEYWORDS {
+            assert!(check_name(k).is_err(), "{k}");
+            assert!(
+                check_name(&k.to_ascii_uppercase()).is_ok() || k == "_",
+                "{k}"
+            );
+            assert!(check_name(&format!("r#{k}")).is_err(), "r#{k}");
+        }
+        for good in ["TAPS", "_TAPS", "__", "T1", "SILO_SCALE_TAPS"] {
+            assert!(check_name(good).is_ok(), "{good}");
+        }
+        for bad in ["", "1T", "Taps", "TAPS-2", "TAPS 2", "\u{c4}TAPS"] {
+            assert!(check_name(bad).is_err(), "{bad}");
+        }
+    }
 }

@@ -4,5 +4,6 @@
 pub mod check;
 pub mod design;
 pub mod plot;
+pub mod plot_axes;
 pub mod prepare;
 pub mod replay;

@@ -25,6 +25,7 @@ use crate::tool::input::spec::Chosen;
 use crate::tool::input::taps::Format;
 use crate::tool::jobs::design::{self, Designed, Taps};
 use crate::tool::jobs::plot;
+use crate::tool::jobs::plot_axes::FreqScaleArg;
 use crate::tool::jobs::replay::{self, Replayed, Rows};
 use crate::tool::output::atomic::Outputs;
 use crate::tool::output::report::Report;
@@ -113,7 +114,7 @@ fn job(r: &Request, d: &Designed, outputs: &mut Outputs) -> Result<Report, Failu
         outputs.finish(f)?;
     }
     let source = d.rust_source(&r.name, &r.command);
-    let svg = plot::render(&plot::design_figure(d))?;
+    let svg = plot::render(&plot::design_figure(d, FreqScaleArg::Auto))?;
     let safe = d.is_safe();
     let status = if safe && replayed.status() == 0 { 0 } else { 1 };
     let text = report_text(r, d, &replayed, status, dir);

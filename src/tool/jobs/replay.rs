@@ -273,6 +273,7 @@ impl Replayed {
             "samples": self.samples,
             "taps": self.taps,
             "format": self.format.name(),
+            "adc": self.adc.json(self.format.word_bits()),
             "rounding": match self.format {
                 Format::F32 => None,
                 _ => Some(report::rounding_name(self.rounding)),
