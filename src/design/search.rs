@@ -185,7 +185,9 @@ impl Spec<f64> {
     /// neighbour one step shorter missing.
     ///
     /// # Errors
-    /// The spec's errors; [`DesignError::SpecNotMet`] (`taps` = [`MAX_EQUIRIPPLE_TAPS`]) when no
+    /// The spec's errors; [`DesignError::SpecNotMet`] (`taps` = the longest length tried:
+    /// [`MAX_EQUIRIPPLE_TAPS`], or the longest odd length below it where the band needs odd
+    /// lengths) when no
     /// length up to [`MAX_EQUIRIPPLE_TAPS`] meets it.
     ///
     /// ```
@@ -208,22 +210,24 @@ impl Spec<f64> {
             Ok(c) if c.measured.meets() => Some(c),
             _ => None,
         };
-        let mut len = estimate;
+        // The longest length this search may try: odd-only bands stop at the longest odd
+        // length within the limit (the search once waited for an even limit it never tried).
+        let longest = if step == 2 && MAX_EQUIRIPPLE_TAPS % 2 == 0 {
+            MAX_EQUIRIPPLE_TAPS - 1
+        } else {
+            MAX_EQUIRIPPLE_TAPS
+        };
+        let mut len = estimate.min(longest);
         let mut best = meets(len);
         if best.is_none() {
             // Gallop: the last length known to miss, and the next try.
             let mut missed = len;
             let mut jump = step;
             loop {
-                if missed >= MAX_EQUIRIPPLE_TAPS {
-                    return Err(DesignError::SpecNotMet {
-                        taps: MAX_EQUIRIPPLE_TAPS,
-                    });
+                if missed >= longest {
+                    return Err(DesignError::SpecNotMet { taps: longest });
                 }
-                let mut next = (missed + jump).min(MAX_EQUIRIPPLE_TAPS);
-                if next % 2 == 0 && step == 2 {
-                    next -= 1;
-                }
+                let next = (missed + jump).min(longest);
                 if let Some(c) = meets(next) {
                     len = next;
                     best = Some(c);

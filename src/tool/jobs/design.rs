@@ -181,6 +181,9 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
     // misses). Otherwise the library's search: the shortest that meets the spec, and for fixed
     // point the shortest whose quantized taps meet it.
     let given = |e: DesignError| match (chosen.length, e) {
+        (Some(len), e @ DesignError::NoConvergence { .. }) => Failure::plain(format!(
+            "design: equiripple, {len} taps: {e}; a length far beyond what the spec needs has an optimal error below what 64-bit arithmetic resolves, so leave the length out (the search finds the shortest) or ask for fewer taps"
+        )),
         (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
         (None, DesignError::SpecNotMet { taps }) => Failure::plain(format!(
             "design: no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
