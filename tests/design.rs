@@ -791,8 +791,14 @@ fn quantization_keeps_dc_exact_and_symmetry_and_says_when_it_cannot() {
     assert_eq!(q5[0], q5[4]);
     // Out of range and mismatched lengths.
     assert!(matches!(
-        quantize(&[2.0f64], &mut [0i16]),
-        Err(DesignError::TapOutOfRange { index: 0, .. })
+        quantize(&[0.25f64, 2.0], &mut [0i16; 2]),
+        Err(DesignError::TapBeyondFormat {
+            index: 1,
+            taps: 2,
+            lsb: 65536,
+            limit_lsb: 32768,
+            ..
+        })
     ));
     assert!(matches!(
         quantize(&[f64::NAN], &mut [0i32]),

@@ -265,6 +265,11 @@ impl Grid {
             let count = (((hi - lo) / step).round() as usize).max(1) + 1;
             for k in 0..count {
                 let nu = lo + (hi - lo) * k as f64 / (count - 1) as f64;
+                // Bands that touch share an edge: one grid point there, in the earlier band
+                // (two equal nodes would make the interpolation divide by zero).
+                if g.nu.last().is_some_and(|&last| nu <= last) {
+                    continue;
+                }
                 let q = q_factor(nu, odd);
                 g.nu.push(nu);
                 g.x.push(nu.sin_cos_turns().1);
@@ -392,10 +397,11 @@ fn exchange(grid: &Grid, r: usize, cap: u32) -> Result<(Fit, u32), DesignError> 
             break;
         }
         let peak = err.iter().fold(0.0f64, |m, e| m.max(e.abs()));
-        let Some(next) = extremes(grid, &err, r + 1, &ext) else {
+        let Some((next, padded)) = extremes(grid, &err, r + 1, &ext) else {
             break;
         };
-        let settled = next == ext || (peak - fit.delta.abs()) <= 1e-10 * peak;
+        // A padded set is no proof of an optimum, however little it moved.
+        let settled = !padded && (next == ext || (peak - fit.delta.abs()) <= 1e-10 * peak);
         if settled {
             return Ok((fit, it));
         }
@@ -422,7 +428,12 @@ const PRECISION_FLOOR: f64 = 1e-9;
 
 /// The new trial set: local extremes of the error (band ends included), alternating in sign,
 /// trimmed to `want` by dropping the smallest (keeping alternation).
-fn extremes(grid: &Grid, err: &[f64], want: usize, previous: &[usize]) -> Option<Vec<usize>> {
+fn extremes(
+    grid: &Grid,
+    err: &[f64],
+    want: usize,
+    previous: &[usize],
+) -> Option<(Vec<usize>, bool)> {
     let g = err.len();
     let at = |i: usize| err.get(i).copied().unwrap_or(0.0);
     let same_band = |i: usize, j: usize| grid.band.get(i) == grid.band.get(j);
@@ -483,7 +494,8 @@ fn extremes(grid: &Grid, err: &[f64], want: usize, previous: &[usize]) -> Option
             }
         }
     }
-    if alt.len() < want {
+    let padded = alt.len() < want;
+    if padded {
         // Too few alternating extremes: the error's sign changes drowned in rounding (the
         // trial set was far from the optimum and δ came out near 0). Keep the strongest
         // previous trial points that are not chosen again, so the set stays r + 1 distinct
@@ -500,5 +512,5 @@ fn extremes(grid: &Grid, err: &[f64], want: usize, previous: &[usize]) -> Option
             alt.insert(pos, i);
         }
     }
-    (alt.len() == want).then_some(alt)
+    (alt.len() == want).then_some((alt, padded))
 }
