@@ -1083,7 +1083,10 @@ fn transition_band_overshoot_is_a_miss() {
     let (_, t_high) = band_extremes(&fixed.design.taps, 0.30, 0.31, 64);
     assert!(fixed.measured.transition_within() && db(t_low.max(t_high)) < 0.5);
     let best = spec.shortest_equiripple().unwrap();
-    println!("bandpass 100/150/300/310 Hz: shortest {} taps", best.design.taps.len());
+    println!(
+        "bandpass 100/150/300/310 Hz: shortest {} taps",
+        best.design.taps.len()
+    );
     assert!(best.measured.meets());
 }
 

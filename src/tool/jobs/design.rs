@@ -332,6 +332,13 @@ impl Designed {
             m.stopband.max_at_hz,
             Self::meets(m)
         );
+        let _ = writeln!(
+            t,
+            "transition bands: largest gain {:+.2} dB at {:.2} Hz (the passband's limit {:+.2} dB)",
+            m.transition_peak_db(),
+            m.transition.max_at_hz,
+            20.0 * m.transition_limit().log10()
+        );
         match &self.proof {
             Some((h, b)) => {
                 let _ = writeln!(t, "headroom ({}):", c.adc.describe(c.format.word_bits()));
