@@ -132,7 +132,8 @@ fn gain(h: &[f64], nu: f64) -> f64 {
 /// relative slack on each limit. Returns the largest gain found in a transition band.
 fn dense_check(s: &Spec<f64>, taps: &[f64], tol: f64) -> Result<f64, String> {
     let fs = s.sample_rate_hz;
-    let (pass, stop): (Vec<(f64, f64)>, Vec<(f64, f64)>) = match s.shape {
+    type Edges = Vec<(f64, f64)>;
+    let (pass, stop): (Edges, Edges) = match s.shape {
         Shape::Lowpass { pass_hz, stop_hz } => (vec![(0.0, pass_hz)], vec![(stop_hz, fs / 2.0)]),
         Shape::Highpass { stop_hz, pass_hz } => (vec![(pass_hz, fs / 2.0)], vec![(0.0, stop_hz)]),
         Shape::Bandpass {
