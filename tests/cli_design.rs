@@ -149,3 +149,33 @@ fn silo_spec_at_200_taps() {
     assert_eq!(v["taps"], Value::from(200));
     assert_eq!(v["quantized"]["meets_spec"], Value::Bool(true));
 }
+
+/// The plot marks the largest transition-band gain with a label giving the gain and where.
+#[test]
+fn plot_marks_the_transition_peak() {
+    let dir = std::env::temp_dir().join(format!("tapline-cli-design-{}", std::process::id()));
+    let _ = std::fs::create_dir_all(&dir);
+    let svg = dir.join("bp.svg");
+    let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
+        .arg("plot")
+        .args(&BANDPASS)
+        .args(["--attenuation", "40", "--json", "--out"])
+        .arg(&svg)
+        .output();
+    let out = match out {
+        Ok(out) => out,
+        Err(e) => panic!("could not run the tool: {e}"),
+    };
+    let v = json(&out);
+    // The shipped (here f32) taps are what the plot measures.
+    let peak = v["quantized"]["transition_peak_db"]
+        .as_f64()
+        .unwrap_or(f64::NAN);
+    let at = v["quantized"]["transition_peak_hz"]
+        .as_f64()
+        .unwrap_or(f64::NAN);
+    let text = std::fs::read_to_string(&svg).unwrap_or_default();
+    let _ = std::fs::remove_dir_all(&dir);
+    let label = format!("largest transition gain: {peak:+.2} dB at {at:.1} Hz");
+    assert!(text.contains(&label), "no {label:?} in the SVG");
+}

@@ -300,6 +300,7 @@ fn draw(f: &Figure, svg: &mut String) -> Result<(), Box<dyn std::error::Error>> 
                 (x, g + (high - low) * 0.06),
                 (FONT, 16).into_font(),
             )))?;
+            mark_transition_peak(&mut chart, &m, half, (low, high))?;
         }
     }
     chart
@@ -516,6 +517,40 @@ fn measured_line(label: &str, m: &Measured<f64>) -> String {
             "MISSES the spec"
         }
     )
+}
+
+/// The largest transition-band gain of the shipped taps (where an equiripple design would
+/// overshoot): a small upward triangle at it and a label with its gain and frequency, the
+/// gain clamped to the axis so that the mark stays on the page.
+fn mark_transition_peak(
+    chart: &mut ChartContext<
+        '_,
+        SVGBackend<'_>,
+        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+    >,
+    m: &Measured<f64>,
+    half: f64,
+    (low, high): (f64, f64),
+) -> Result<(), Box<dyn std::error::Error>> {
+    let at = m.transition.max_at_hz;
+    let peak = m.transition_peak_db();
+    let g = peak.clamp(low, high);
+    let (dx, dy) = (half * 0.007, (high - low) * 0.014);
+    chart.draw_series(std::iter::once(Polygon::new(
+        vec![(at - dx, g - dy), (at + dx, g - dy), (at, g + dy)],
+        LIMIT_COLOR.filled(),
+    )))?;
+    let x = if at < half * 0.6 {
+        at + half * 0.015
+    } else {
+        at - half * 0.36
+    };
+    chart.draw_series(std::iter::once(Text::new(
+        format!("largest transition gain: {peak:+.2} dB at {at:.1} Hz"),
+        (x, (g - (high - low) * 0.05).max(low)),
+        (FONT, 16).into_font(),
+    )))?;
+    Ok(())
 }
 
 /// The page for a design from a spec.
