@@ -309,3 +309,32 @@ fn meets_holds_on_a_dense_grid_for_many_invented_plans() {
     // constrained, equiripple bandpass and bandstop plans with unequal widths were refused.
     assert_eq!(refused, 0, "{refused} of {n} refused");
 }
+
+/// A Q15 highpass with a tight passband ripple (0.0073 dB): the quantized taps of the
+/// shortest float design miss at every stopband margin (margins buy attenuation, not
+/// ripple), and the search used to refuse ("no design of up to 79 taps") while asking for
+/// exactly 79 taps gave Q15 taps that meet. Now the search goes on over the lengths and
+/// returns the shortest whose quantized taps meet, its neighbour one step shorter missing.
+#[test]
+fn q15_highpass_search_finds_the_length_that_meets() {
+    let s = spec(
+        Shape::Highpass {
+            stop_hz: 180.0,
+            pass_hz: 233.0,
+        },
+        0.0073,
+        65.5,
+    );
+    let d = match s.equiripple_fixed::<i16>(None) {
+        Ok(d) => d,
+        Err(e) => panic!("refused: {e}"),
+    };
+    let n = d.taps.len();
+    println!(
+        "Q15 highpass 180/233 Hz, 0.0073 dB, 65.5 dB: {n} taps, margin {} dB",
+        d.margin_db
+    );
+    assert!(d.measured.meets());
+    let shorter = s.equiripple_fixed::<i16>(Some(n - 2));
+    assert!(shorter.is_ok_and(|d| !d.measured.meets()));
+}

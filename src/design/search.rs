@@ -101,6 +101,88 @@ impl Spec<f64> {
         })
     }
 
+    /// The length step of this spec's equiripple searches (2 where the band needs odd
+    /// lengths) and the longest length they may try: odd-only bands stop at the longest odd
+    /// length within [`MAX_EQUIRIPPLE_TAPS`] (the search once waited for an even limit it
+    /// never tried, and looped forever).
+    fn search_steps(&self) -> (usize, usize) {
+        let step = if self.needs_odd() { 2 } else { 1 };
+        let longest = if step == 2 && MAX_EQUIRIPPLE_TAPS % 2 == 0 {
+            MAX_EQUIRIPPLE_TAPS - 1
+        } else {
+            MAX_EQUIRIPPLE_TAPS
+        };
+        (step, longest)
+    }
+
+    /// The length search shared by the equiripple searches: `meets(len)` is a design of `len`
+    /// taps if it meets, else None. From `start`: if it misses, lengths grow in doubling
+    /// steps until one meets, then bisection between the last miss and that one; finally
+    /// shorter lengths one step at a time while they still meet. Every length tried has the
+    /// band's parity, none exceeds the longest of [`search_steps`](Spec::search_steps), and
+    /// the search ends after at most about 2·log2(limit) + (steps back) designs. Returns the
+    /// design, or the longest length tried when none met.
+    fn shortest_by<C>(
+        &self,
+        start: usize,
+        mut meets: impl FnMut(usize) -> Option<C>,
+    ) -> Result<C, usize> {
+        let (step, longest) = self.search_steps();
+        let mut len = start.clamp(3, longest);
+        if step == 2 && len % 2 == 0 {
+            len -= 1;
+        }
+        let mut best = meets(len);
+        if best.is_none() {
+            // Gallop: the last length known to miss, and the next try.
+            let mut missed = len;
+            let mut jump = step;
+            loop {
+                if missed >= longest {
+                    return Err(longest);
+                }
+                let next = (missed + jump).min(longest);
+                if let Some(c) = meets(next) {
+                    len = next;
+                    best = Some(c);
+                    break;
+                }
+                missed = next;
+                jump *= 2;
+            }
+            // Bisect between `missed` (misses) and `len` (meets), keeping the parity.
+            while len - missed > step {
+                let mut mid = missed + (len - missed) / 2;
+                if step == 2 && mid % 2 != len % 2 {
+                    mid += 1;
+                }
+                if mid >= len {
+                    break;
+                }
+                match meets(mid) {
+                    Some(c) => {
+                        len = mid;
+                        best = Some(c);
+                    }
+                    None => missed = mid,
+                }
+            }
+        }
+        let Some(mut best) = best else {
+            return Err(len);
+        };
+        while len >= 3 + step {
+            match meets(len - step) {
+                Some(shorter) => {
+                    best = shorter;
+                    len -= step;
+                }
+                None => break,
+            }
+        }
+        Ok(best)
+    }
+
     /// [`equiripple_bands`](Spec::equiripple_bands) with every transition band narrowed to
     /// the narrowest one by moving its stopband edge towards the passband: the exchange leaves
     /// a transition band free, and a wider one than the length needs is where an overshoot
@@ -245,67 +327,13 @@ impl Spec<f64> {
     /// ```
     pub fn shortest_equiripple(&self) -> Result<EquirippleDesign, DesignError> {
         let estimate = self.equiripple_estimate()?;
-        let step = if self.needs_odd() { 2 } else { 1 };
         let meets = |len: usize| match self.equiripple_at(len) {
             Ok(c) if c.measured.meets() => Some(c),
             _ => None,
         };
-        // The longest length this search may try: odd-only bands stop at the longest odd
-        // length within the limit (the search once waited for an even limit it never tried).
-        let longest = if step == 2 && MAX_EQUIRIPPLE_TAPS % 2 == 0 {
-            MAX_EQUIRIPPLE_TAPS - 1
-        } else {
-            MAX_EQUIRIPPLE_TAPS
-        };
-        let mut len = estimate.min(longest);
-        let mut best = meets(len);
-        if best.is_none() {
-            // Gallop: the last length known to miss, and the next try.
-            let mut missed = len;
-            let mut jump = step;
-            loop {
-                if missed >= longest {
-                    return Err(DesignError::SpecNotMet { taps: longest });
-                }
-                let next = (missed + jump).min(longest);
-                if let Some(c) = meets(next) {
-                    len = next;
-                    best = Some(c);
-                    break;
-                }
-                missed = next;
-                jump *= 2;
-            }
-            // Bisect between `missed` (misses) and `len` (meets), keeping the parity.
-            while len - missed > step {
-                let mut mid = missed + (len - missed) / 2;
-                if step == 2 && mid % 2 != len % 2 {
-                    mid += 1;
-                }
-                if mid >= len {
-                    break;
-                }
-                match meets(mid) {
-                    Some(c) => {
-                        len = mid;
-                        best = Some(c);
-                    }
-                    None => missed = mid,
-                }
-            }
-        }
-        let Some(mut best) = best else {
-            return Err(DesignError::SpecNotMet { taps: len });
-        };
-        while len >= 3 + step {
-            match meets(len - step) {
-                Some(shorter) => {
-                    best = shorter;
-                    len -= step;
-                }
-                None => break,
-            }
-        }
+        let mut best = self
+            .shortest_by(estimate, meets)
+            .map_err(|taps| DesignError::SpecNotMet { taps })?;
         best.estimated_len = Some(estimate);
         Ok(best)
     }
@@ -313,13 +341,18 @@ impl Spec<f64> {
     /// An equiripple design whose taps, quantized to `T` by [`quantize`](super::quantize),
     /// meet the spec: the [shortest](Spec::shortest_equiripple) float design, asked for each
     /// margin of [`QUANTIZATION_MARGINS_DB`] in turn until its quantized taps meet the spec
-    /// (the same schedule as [`kaiser_fixed`](Spec::kaiser_fixed)). With `length` given, that
-    /// one length is designed at margin 0 and returned whatever it measures.
+    /// (the same schedule as [`kaiser_fixed`](Spec::kaiser_fixed)). Margins only buy stopband
+    /// attenuation, so when none helps (a tight passband ripple that rounding breaks), the
+    /// lengths are searched as [`shortest_equiripple`](Spec::shortest_equiripple) searches
+    /// them, each judged by its quantized taps (margin 0), from the first float length up to
+    /// the limit. With `length` given, that one length is designed at margin 0 and returned
+    /// whatever it measures.
     ///
     /// # Errors
     /// As [`shortest_equiripple`](Spec::shortest_equiripple) / [`equiripple_at`](Spec::equiripple_at)
-    /// and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] (`taps` = the longest float
-    /// design tried) when no margin helps.
+    /// and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] (`taps` = the longest length
+    /// the search tried, the limit of [`shortest_equiripple`](Spec::shortest_equiripple)) when
+    /// neither a margin nor a length helps.
     ///
     /// ```
     /// use tapline::design::{Shape, Spec};
@@ -340,36 +373,51 @@ impl Spec<f64> {
         &self,
         length: Option<usize>,
     ) -> Result<FixedEquiripple<T>, DesignError> {
-        let margins: &[f64] = match length {
-            Some(_) => &[0.0],
-            None => &QUANTIZATION_MARGINS_DB,
-        };
-        let mut longest = 0;
-        for &margin_db in margins {
-            let stricter = Spec {
-                stopband_attenuation_db: self.stopband_attenuation_db + margin_db,
-                ..*self
-            };
-            let mut float = match length {
-                Some(len) => stricter.equiripple_at(len)?,
-                None => stricter.shortest_equiripple()?,
-            };
-            // The float figures are against the spec as asked, not the stricter one.
+        // The float design's taps quantized and measured against the spec as asked.
+        let fixed = |mut float: EquirippleDesign, margin_db: f64| {
             float.measured = self.measure(&float.design.taps)?;
             let mut taps = vec![T::ZERO; float.design.taps.len()];
             let quantized = quantize(&float.design.taps, &mut taps)?;
             let measured = self.measure(&taps)?;
-            if measured.meets() || length.is_some() {
-                return Ok(FixedEquiripple {
-                    float,
-                    taps,
-                    quantized,
-                    measured,
-                    margin_db,
-                });
-            }
-            longest = longest.max(taps.len());
+            Ok::<_, DesignError>(FixedEquiripple {
+                float,
+                taps,
+                quantized,
+                measured,
+                margin_db,
+            })
+        };
+        if let Some(len) = length {
+            return fixed(self.equiripple_at(len)?, 0.0);
         }
-        Err(DesignError::SpecNotMet { taps: longest })
+        // First the shortest float design of each stricter spec in turn.
+        let mut start = None;
+        for margin_db in QUANTIZATION_MARGINS_DB {
+            let stricter = Spec {
+                stopband_attenuation_db: self.stopband_attenuation_db + margin_db,
+                ..*self
+            };
+            let float = match stricter.shortest_equiripple() {
+                Ok(f) => f,
+                // No float design meets the stricter spec: larger margins will not either.
+                Err(DesignError::SpecNotMet { .. }) if start.is_some() => break,
+                Err(e) => return Err(e),
+            };
+            start = start.or(Some(float.design.taps.len()));
+            let d = fixed(float, margin_db)?;
+            if d.measured.meets() {
+                return Ok(d);
+            }
+        }
+        // Margins buy stopband attenuation only; when the quantized passband is what misses
+        // (tight ripple, a highpass's gain at fs/2), a longer design helps where they do not.
+        // So search the lengths themselves, judging each by its quantized taps.
+        let start = start.unwrap_or(3);
+        let meets = |len: usize| {
+            let float = self.equiripple_at(len).ok()?;
+            fixed(float, 0.0).ok().filter(|d| d.measured.meets())
+        };
+        self.shortest_by(start, meets)
+            .map_err(|taps| DesignError::SpecNotMet { taps })
     }
 }

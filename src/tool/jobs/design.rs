@@ -186,7 +186,7 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
         )),
         (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
         (None, DesignError::SpecNotMet { taps }) => Failure::plain(format!(
-            "design: no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
+            "design: no equiripple design of up to {taps} taps meets the spec in {} (the search tried lengths up to {taps}; the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
             chosen.format.name()
         )),
         (None, e) => library(e),
