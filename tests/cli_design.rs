@@ -158,7 +158,7 @@ fn plot_marks_the_transition_peak() {
     let svg = dir.join("bp.svg");
     let out = Command::new(env!("CARGO_BIN_EXE_tapline"))
         .arg("plot")
-        .args(&BANDPASS)
+        .args(BANDPASS)
         .args(["--attenuation", "40", "--json", "--out"])
         .arg(&svg)
         .output();
