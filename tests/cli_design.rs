@@ -28,6 +28,18 @@ fn json(out: &Output) -> Value {
     })
 }
 
+/// Runs `design` and returns its JSON, failing unless it exits 0.
+fn design_ok(args: &[&str]) -> Value {
+    let (out, _) = design(args);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    json(&out)
+}
+
 const BANDPASS: [&str; 12] = [
     "--band",
     "bandpass",
@@ -51,14 +63,7 @@ const BANDPASS: [&str; 12] = [
 fn unequal_transitions_get_a_design_that_meets() {
     let mut args = BANDPASS.to_vec();
     args.extend(["--attenuation", "40", "--json"]);
-    let (out, _) = design(&args);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v = json(&out);
+    let v = design_ok(&args);
     let f = &v["float"];
     assert_eq!(f["meets_spec"], Value::Bool(true));
     let peak = f["transition_peak_db"].as_f64().unwrap_or(f64::NAN);
@@ -80,14 +85,7 @@ fn unequal_transitions_get_a_design_that_meets() {
     let mut args = BANDPASS.to_vec();
     args.truncate(11);
     args.extend(["100,110,200,300", "--attenuation", "50", "--json"]);
-    let (out, _) = design(&args);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    assert_eq!(json(&out)["float"]["meets_spec"], Value::Bool(true));
+    assert_eq!(design_ok(&args)["float"]["meets_spec"], Value::Bool(true));
 }
 
 /// A highpass no length meets: the search used to loop forever; now exit 2 with one line
@@ -122,29 +120,9 @@ fn hopeless_highpass_ends_with_a_clear_refusal() {
 /// iterations"); the lengths the library documents as converging do.
 #[test]
 fn silo_spec_at_200_taps() {
-    let (out, _) = design(&[
-        "--band",
-        "lowpass",
-        "--rate",
-        "1000",
-        "--edges",
-        "5,50",
-        "--ripple",
-        "0.1",
-        "--attenuation",
-        "60",
-        "--format",
-        "q15",
-        "--adc-bits",
-        "12",
-        "--align",
-        "right",
-        "--method",
-        "equiripple",
-        "--length",
-        "200",
-        "--json",
-    ]);
+    let flags = "--band lowpass --rate 1000 --edges 5,50 --ripple 0.1 --attenuation 60 \
+                 --format q15 --adc-bits 12 --align right --method equiripple --length 200 --json";
+    let (out, _) = design(&flags.split_whitespace().collect::<Vec<_>>());
     let v = json(&out);
     assert_eq!(v["taps"], Value::from(200));
     assert_eq!(v["quantized"]["meets_spec"], Value::Bool(true));
