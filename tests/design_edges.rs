@@ -50,12 +50,32 @@ fn silo() -> Spec<f64> {
 // Point 8: the equiripple search ends, and explicit lengths converge
 // ---------------------------------------------------------------------------------------------
 
-/// A highpass and a bandstop (odd lengths only) that no length up to the limit meets: a 1 Hz
-/// transition at 1 kHz for 80 dB needs about 5000 taps by Kaiser's estimate. The search used
-/// to wait for the even limit 1024, which odd-only bands never try, and looped forever.
+/// Highpass and bandstop plans (odd lengths only) that no length up to the limit meets. With
+/// an estimate within the limit (250 dB: below what f64 taps resolve, so every exchange
+/// misses), the search used to wait for the even limit 1024, which odd-only bands never try,
+/// and looped forever; with an estimate beyond it (a 1 Hz transition for 80 dB, about 5000
+/// taps), it named 1024 taps, a length it had not tried.
 #[test]
 fn search_without_a_meeting_length_ends_with_the_longest_length_tried() {
     let cases = [
+        spec(
+            Shape::Highpass {
+                stop_hz: 100.0,
+                pass_hz: 300.0,
+            },
+            0.1,
+            250.0,
+        ),
+        spec(
+            Shape::Bandstop {
+                pass_low_hz: 50.0,
+                stop_low_hz: 150.0,
+                stop_high_hz: 250.0,
+                pass_high_hz: 350.0,
+            },
+            0.1,
+            250.0,
+        ),
         spec(
             Shape::Highpass {
                 stop_hz: 100.0,
