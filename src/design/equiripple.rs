@@ -75,7 +75,7 @@ pub const EQUIRIPPLE_MAX_ITERATIONS: u32 = 100;
 ///
 /// **Accuracy:** the exchange stops when the trial frequencies no longer move or the extremes
 /// of the weighted error agree with δ to 10⁻¹⁰ relative; taps agree with scipy 1.17.1's
-/// `remez` (same grid density) to 10⁻⁵ and the per-band deviations to 10⁻⁴ relative (the grids
+/// `remez` (same grid density) to 5·10⁻⁵ and the per-band deviations to 1 % relative (the grids
 /// are built differently; `tests/design_scipy.rs`). The reported deviations are measured on
 /// the final taps between grid points as well, by [`gain_range`](super::gain_range).
 ///

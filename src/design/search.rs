@@ -250,7 +250,10 @@ impl Spec<f64> {
     }
 
     /// One equiripple design of exactly `len` taps, measured against the spec (whether it
-    /// meets it or not).
+    /// meets it or not). When the exchange over the spec's bands overshoots in a transition
+    /// band (above [`Measured::transition_limit`]), the design is redone with every transition
+    /// band narrowed to the narrowest (the stopbands extended towards the passbands), and
+    /// that one is returned if its transition bands hold.
     ///
     /// # Errors
     /// The spec's errors and those of [`equiripple`](super::equiripple);
