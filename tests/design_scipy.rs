@@ -278,7 +278,7 @@ fn window_method_designs_match_scipy() {
 /// scipy.signal.remez (grid density 16). The two programs build their dense grids differently
 /// (scipy steps from each band's lower edge; we space points evenly with both edges
 /// included), so the discrete optima differ slightly: taps within 5e-5 absolute (measured:
-/// 3.9e-5 at worst), per-band deviation within 1 % relative (measured 0.6 %), |H| at every band
+/// 4.5e-5 at worst, the 170-tap bandpass), per-band deviation within 1 % relative (measured 0.6 %), |H| at every band
 /// edge within 1e-4 absolute. And on the same dense grid our largest weighted error is at most
 /// scipy's + 0.5 % (measured: +0.12 % at worst; both are optima on their own discrete grids,
 /// and the true error between grid points is what this compares). Each check fails for a design

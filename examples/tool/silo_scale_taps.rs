@@ -9,6 +9,7 @@
 /// group delay: 42 samples = 42.000 ms (linear phase)
 /// float64 taps: ripple 0.0165 dB, attenuation 61.41 dB -> meets the spec
 /// Q15 taps: ripple 0.0167 dB, attenuation 60.86 dB (worst at 52.51 Hz) -> meets the spec
+/// transition bands: largest gain -0.02 dB at 5.00 Hz (the passband's limit +0.08 dB)
 /// headroom (12-bit ADC, right-aligned in 16 bits):
 ///   85 taps with 15 fractional bits on 16-bit samples, input codes -2048..=2047
 ///   sum |h| = 1.172852, DC gain = 1.000000, peak |h| = 0.054932

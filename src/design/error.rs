@@ -92,11 +92,25 @@ pub enum DesignError {
         /// The longest length tried.
         taps: usize,
     },
-    /// A tap is not finite or lies outside the fixed-point format by more than one LSB.
+    /// A tap is not finite.
     #[non_exhaustive]
     TapOutOfRange {
         /// Position of the first such tap.
         index: usize,
+    },
+    /// A finite tap lies beyond the fixed-point format's range by more than one LSB: the
+    /// float design's taps are larger than the format can hold (an overshooting design, or
+    /// taps scaled for a gain above 1).
+    #[non_exhaustive]
+    TapBeyondFormat {
+        /// Position of the largest tap (by magnitude).
+        index: usize,
+        /// The number of taps.
+        taps: usize,
+        /// The largest tap's magnitude in the format's LSBs, rounded up.
+        lsb: u64,
+        /// The format's largest magnitude in LSBs (2^F for Q15/Q31).
+        limit_lsb: u64,
     },
 }
 
@@ -172,9 +186,18 @@ impl fmt::Display for DesignError {
                 "the design still misses its spec at {taps} taps: widen the transition band or \
                  relax the ripple or attenuation"
             ),
-            DesignError::TapOutOfRange { index } => write!(
+            DesignError::TapOutOfRange { index } => write!(f, "tap {index} is not finite"),
+            DesignError::TapBeyondFormat {
+                index,
+                taps,
+                lsb,
+                limit_lsb,
+            } => write!(
                 f,
-                "tap {index} is not finite or lies outside the fixed-point format's range"
+                "the float design's largest tap, tap {index} of {taps}, is {lsb} LSB, beyond the \
+                 fixed-point format's range of {limit_lsb} LSB (|tap| ≤ 1): the design overshoots \
+                 somewhere (its gain exceeds what the format can hold), so no taps of this \
+                 length fit; choose another length or let the search choose it"
             ),
         }
     }

@@ -87,7 +87,8 @@ impl Quantized {
 ///
 /// # Errors
 /// [`DesignError::Filter`]([`Error::TapCountMismatch`]) if the lengths differ; [`DesignError::TooShort`] for no taps;
-/// [`DesignError::TapOutOfRange`] for a non-finite tap or one beyond the format by more than 1 LSB.
+/// [`DesignError::TapOutOfRange`] for a non-finite tap; [`DesignError::TapBeyondFormat`] (naming
+/// the largest tap) for one beyond the format by more than 1 LSB.
 ///
 /// ```
 /// use tapline::design::{moving_average, quantize};
@@ -130,8 +131,11 @@ pub fn quantize<S: Sample, T: FixedPoint>(
     let (mut sum, mut comp) = (0.0f64, 0.0f64);
     for (k, slot) in out.iter_mut().enumerate() {
         let v = scaled(k);
-        if !(v.is_finite() && v >= lo - 1.0 && v <= hi + 1.0) {
+        if !v.is_finite() {
             return Err(DesignError::TapOutOfRange { index: k });
+        }
+        if !(v >= lo - 1.0 && v <= hi + 1.0) {
+            return Err(beyond_format(n, &scaled, hi));
         }
         *slot = T::from_raw(round_f64(v).clamp(lo, hi) as i64);
         let t = sum + v;
@@ -242,5 +246,23 @@ fn nudge<T: FixedPoint>(out: &mut [T], k: usize, step: i64) -> bool {
             }
         }
         None => false,
+    }
+}
+
+/// The error for taps beyond the format: which tap is the largest, and by how much (all taps
+/// are finite when this is called).
+fn beyond_format(n: usize, scaled: &impl Fn(usize) -> f64, hi: f64) -> DesignError {
+    let (index, largest) = (0..n)
+        .map(|k| (k, abs_f64(scaled(k))))
+        .fold((0, 0.0f64), |b, x| if x.1 > b.1 { x } else { b });
+    DesignError::TapBeyondFormat {
+        index,
+        taps: n,
+        // Finite and non-negative; the cast saturates beyond u64.
+        lsb: {
+            let r = round_f64(largest);
+            (if r < largest { r + 1.0 } else { r }) as u64
+        },
+        limit_lsb: hi as u64 + 1,
     }
 }

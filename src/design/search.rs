@@ -101,6 +101,115 @@ impl Spec<f64> {
         })
     }
 
+    /// The length step of this spec's equiripple searches (2 where the band needs odd
+    /// lengths) and the longest length they may try: odd-only bands stop at the longest odd
+    /// length within [`MAX_EQUIRIPPLE_TAPS`] (the search once waited for an even limit it
+    /// never tried, and looped forever).
+    fn search_steps(&self) -> (usize, usize) {
+        let step = if self.needs_odd() { 2 } else { 1 };
+        let longest = if step == 2 && MAX_EQUIRIPPLE_TAPS % 2 == 0 {
+            MAX_EQUIRIPPLE_TAPS - 1
+        } else {
+            MAX_EQUIRIPPLE_TAPS
+        };
+        (step, longest)
+    }
+
+    /// The length search shared by the equiripple searches: `meets(len)` is a design of `len`
+    /// taps if it meets, else None. From `start`: if it misses, lengths grow in doubling
+    /// steps until one meets, then bisection between the last miss and that one; finally
+    /// shorter lengths one step at a time while they still meet. Every length tried has the
+    /// band's parity, none exceeds the longest of [`search_steps`](Spec::search_steps), and
+    /// the search ends after at most about 2·log2(limit) + (steps back) designs. Returns the
+    /// design, or the longest length tried when none met.
+    fn shortest_by<C>(
+        &self,
+        start: usize,
+        mut meets: impl FnMut(usize) -> Option<C>,
+    ) -> Result<C, usize> {
+        let (step, longest) = self.search_steps();
+        let mut len = start.clamp(3, longest);
+        if step == 2 && len % 2 == 0 {
+            len -= 1;
+        }
+        let mut best = meets(len);
+        if best.is_none() {
+            // Gallop: the last length known to miss, and the next try.
+            let mut missed = len;
+            let mut jump = step;
+            loop {
+                if missed >= longest {
+                    return Err(longest);
+                }
+                let next = (missed + jump).min(longest);
+                if let Some(c) = meets(next) {
+                    len = next;
+                    best = Some(c);
+                    break;
+                }
+                missed = next;
+                jump *= 2;
+            }
+            // Bisect between `missed` (misses) and `len` (meets), keeping the parity.
+            while len - missed > step {
+                let mut mid = missed + (len - missed) / 2;
+                if step == 2 && mid % 2 != len % 2 {
+                    mid += 1;
+                }
+                if mid >= len {
+                    break;
+                }
+                match meets(mid) {
+                    Some(c) => {
+                        len = mid;
+                        best = Some(c);
+                    }
+                    None => missed = mid,
+                }
+            }
+        }
+        let Some(mut best) = best else {
+            return Err(len);
+        };
+        while len >= 3 + step {
+            match meets(len - step) {
+                Some(shorter) => {
+                    best = shorter;
+                    len -= step;
+                }
+                None => break,
+            }
+        }
+        Ok(best)
+    }
+
+    /// [`equiripple_bands`](Spec::equiripple_bands) with every transition band narrowed to
+    /// the narrowest one by moving its stopband edge towards the passband: the exchange leaves
+    /// a transition band free, and a wider one than the length needs is where an overshoot
+    /// grows (seen at +19 dB and more); with equal widths there is no slack to fill. The
+    /// stopbands only grow, so a design that meets these bands meets the spec's.
+    fn guarded_bands(&self) -> Result<Vec<EquirippleBand>, DesignError> {
+        let mut bands = self.equiripple_bands()?;
+        let width = self.transition_width()?;
+        for k in 0..bands.len().saturating_sub(1) {
+            let (Some(&b), Some(&next)) = (bands.get(k), bands.get(k + 1)) else {
+                continue;
+            };
+            if next.low_hz - b.high_hz <= width {
+                continue;
+            }
+            // The stopband is the band whose desired gain is 0.
+            if next.gain == 0.0 {
+                if let Some(n) = bands.get_mut(k + 1) {
+                    n.low_hz = b.high_hz + width;
+                }
+            } else if let Some(p) = bands.get_mut(k) {
+                p.high_hz = next.low_hz - width;
+            }
+        }
+        Ok(bands)
+    }
+
     /// Kaiser's length estimate for an equiripple filter,
     /// N ≈ (−20·log10 √(δp·δs) − 13) / (14.6·Δf/fs) + 1 (J. F. Kaiser, 1974; from memory), with
     /// Δf the narrower transition band, at least 3, at most [`MAX_EQUIRIPPLE_TAPS`], made odd
@@ -141,7 +250,10 @@ impl Spec<f64> {
     }
 
     /// One equiripple design of exactly `len` taps, measured against the spec (whether it
-    /// meets it or not).
+    /// meets it or not). When the exchange over the spec's bands overshoots in a transition
+    /// band (above [`Measured::transition_limit`]), the design is redone with every transition
+    /// band narrowed to the narrowest (the stopbands extended towards the passbands), and
+    /// that one is returned if its transition bands hold.
     ///
     /// # Errors
     /// The spec's errors and those of [`equiripple`](super::equiripple);
@@ -166,7 +278,20 @@ impl Spec<f64> {
             return Err(DesignError::OddLengthRequired { found: len });
         }
         let design = equiripple(len, &self.equiripple_bands()?, self.sample_rate_hz)?;
-        let measured = self.measure(&design.taps)?;
+        let mut measured = self.measure(&design.taps)?;
+        let mut design = design;
+        if !measured.transition_within() {
+            // The transition band overshoots: design again with the transition bands made
+            // equal (see `guarded_bands`), and keep that design if its transition bands hold
+            // (it may still miss elsewhere at a length too short for the spec).
+            if let Ok(guarded) = equiripple(len, &self.guarded_bands()?, self.sample_rate_hz) {
+                let m = self.measure(&guarded.taps)?;
+                if m.transition_within() {
+                    design = guarded;
+                    measured = m;
+                }
+            }
+        }
         Ok(EquirippleDesign {
             design,
             measured,
@@ -185,7 +310,9 @@ impl Spec<f64> {
     /// neighbour one step shorter missing.
     ///
     /// # Errors
-    /// The spec's errors; [`DesignError::SpecNotMet`] (`taps` = [`MAX_EQUIRIPPLE_TAPS`]) when no
+    /// The spec's errors; [`DesignError::SpecNotMet`] (`taps` = the longest length tried:
+    /// [`MAX_EQUIRIPPLE_TAPS`], or the longest odd length below it where the band needs odd
+    /// lengths) when no
     /// length up to [`MAX_EQUIRIPPLE_TAPS`] meets it.
     ///
     /// ```
@@ -203,65 +330,13 @@ impl Spec<f64> {
     /// ```
     pub fn shortest_equiripple(&self) -> Result<EquirippleDesign, DesignError> {
         let estimate = self.equiripple_estimate()?;
-        let step = if self.needs_odd() { 2 } else { 1 };
         let meets = |len: usize| match self.equiripple_at(len) {
             Ok(c) if c.measured.meets() => Some(c),
             _ => None,
         };
-        let mut len = estimate;
-        let mut best = meets(len);
-        if best.is_none() {
-            // Gallop: the last length known to miss, and the next try.
-            let mut missed = len;
-            let mut jump = step;
-            loop {
-                if missed >= MAX_EQUIRIPPLE_TAPS {
-                    return Err(DesignError::SpecNotMet {
-                        taps: MAX_EQUIRIPPLE_TAPS,
-                    });
-                }
-                let mut next = (missed + jump).min(MAX_EQUIRIPPLE_TAPS);
-                if next % 2 == 0 && step == 2 {
-                    next -= 1;
-                }
-                if let Some(c) = meets(next) {
-                    len = next;
-                    best = Some(c);
-                    break;
-                }
-                missed = next;
-                jump *= 2;
-            }
-            // Bisect between `missed` (misses) and `len` (meets), keeping the parity.
-            while len - missed > step {
-                let mut mid = missed + (len - missed) / 2;
-                if step == 2 && mid % 2 != len % 2 {
-                    mid += 1;
-                }
-                if mid >= len {
-                    break;
-                }
-                match meets(mid) {
-                    Some(c) => {
-                        len = mid;
-                        best = Some(c);
-                    }
-                    None => missed = mid,
-                }
-            }
-        }
-        let Some(mut best) = best else {
-            return Err(DesignError::SpecNotMet { taps: len });
-        };
-        while len >= 3 + step {
-            match meets(len - step) {
-                Some(shorter) => {
-                    best = shorter;
-                    len -= step;
-                }
-                None => break,
-            }
-        }
+        let mut best = self
+            .shortest_by(estimate, meets)
+            .map_err(|taps| DesignError::SpecNotMet { taps })?;
         best.estimated_len = Some(estimate);
         Ok(best)
     }
@@ -269,13 +344,18 @@ impl Spec<f64> {
     /// An equiripple design whose taps, quantized to `T` by [`quantize`](super::quantize),
     /// meet the spec: the [shortest](Spec::shortest_equiripple) float design, asked for each
     /// margin of [`QUANTIZATION_MARGINS_DB`] in turn until its quantized taps meet the spec
-    /// (the same schedule as [`kaiser_fixed`](Spec::kaiser_fixed)). With `length` given, that
-    /// one length is designed at margin 0 and returned whatever it measures.
+    /// (the same schedule as [`kaiser_fixed`](Spec::kaiser_fixed)). Margins only buy stopband
+    /// attenuation, so when none helps (a tight passband ripple that rounding breaks), the
+    /// lengths are searched as [`shortest_equiripple`](Spec::shortest_equiripple) searches
+    /// them, each judged by its quantized taps (margin 0), from the first float length up to
+    /// the limit. With `length` given, that one length is designed at margin 0 and returned
+    /// whatever it measures.
     ///
     /// # Errors
     /// As [`shortest_equiripple`](Spec::shortest_equiripple) / [`equiripple_at`](Spec::equiripple_at)
-    /// and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] (`taps` = the longest float
-    /// design tried) when no margin helps.
+    /// and [`quantize`](super::quantize); [`DesignError::SpecNotMet`] (`taps` = the longest length
+    /// the search tried, the limit of [`shortest_equiripple`](Spec::shortest_equiripple)) when
+    /// neither a margin nor a length helps.
     ///
     /// ```
     /// use tapline::design::{Shape, Spec};
@@ -296,36 +376,51 @@ impl Spec<f64> {
         &self,
         length: Option<usize>,
     ) -> Result<FixedEquiripple<T>, DesignError> {
-        let margins: &[f64] = match length {
-            Some(_) => &[0.0],
-            None => &QUANTIZATION_MARGINS_DB,
-        };
-        let mut longest = 0;
-        for &margin_db in margins {
-            let stricter = Spec {
-                stopband_attenuation_db: self.stopband_attenuation_db + margin_db,
-                ..*self
-            };
-            let mut float = match length {
-                Some(len) => stricter.equiripple_at(len)?,
-                None => stricter.shortest_equiripple()?,
-            };
-            // The float figures are against the spec as asked, not the stricter one.
+        // The float design's taps quantized and measured against the spec as asked.
+        let fixed = |mut float: EquirippleDesign, margin_db: f64| {
             float.measured = self.measure(&float.design.taps)?;
             let mut taps = vec![T::ZERO; float.design.taps.len()];
             let quantized = quantize(&float.design.taps, &mut taps)?;
             let measured = self.measure(&taps)?;
-            if measured.meets() || length.is_some() {
-                return Ok(FixedEquiripple {
-                    float,
-                    taps,
-                    quantized,
-                    measured,
-                    margin_db,
-                });
-            }
-            longest = longest.max(taps.len());
+            Ok::<_, DesignError>(FixedEquiripple {
+                float,
+                taps,
+                quantized,
+                measured,
+                margin_db,
+            })
+        };
+        if let Some(len) = length {
+            return fixed(self.equiripple_at(len)?, 0.0);
         }
-        Err(DesignError::SpecNotMet { taps: longest })
+        // First the shortest float design of each stricter spec in turn.
+        let mut start = None;
+        for margin_db in QUANTIZATION_MARGINS_DB {
+            let stricter = Spec {
+                stopband_attenuation_db: self.stopband_attenuation_db + margin_db,
+                ..*self
+            };
+            let float = match stricter.shortest_equiripple() {
+                Ok(f) => f,
+                // No float design meets the stricter spec: larger margins will not either.
+                Err(DesignError::SpecNotMet { .. }) if start.is_some() => break,
+                Err(e) => return Err(e),
+            };
+            start = start.or(Some(float.design.taps.len()));
+            let d = fixed(float, margin_db)?;
+            if d.measured.meets() {
+                return Ok(d);
+            }
+        }
+        // Margins buy stopband attenuation only; when the quantized passband is what misses
+        // (tight ripple, a highpass's gain at fs/2), a longer design helps where they do not.
+        // So search the lengths themselves, judging each by its quantized taps.
+        let start = start.unwrap_or(3);
+        let meets = |len: usize| {
+            let float = self.equiripple_at(len).ok()?;
+            fixed(float, 0.0).ok().filter(|d| d.measured.meets())
+        };
+        self.shortest_by(start, meets)
+            .map_err(|taps| DesignError::SpecNotMet { taps })
     }
 }

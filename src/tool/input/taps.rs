@@ -300,7 +300,8 @@ pub fn read(path: &Path, format: Format, written: Written) -> Result<Table, Fail
                 ));
             }
             let codes = Codes::quantize(&ideal, format).map_err(|e| match e {
-                DesignError::TapOutOfRange { index, .. } => {
+                DesignError::TapOutOfRange { index, .. }
+                | DesignError::TapBeyondFormat { index, .. } => {
                     let (line, column) = fields.get(index).map_or((1, 1), |f| (f.line, f.column));
                     Failure::at(
                         path,

@@ -202,9 +202,12 @@ fn equiripple_design(chosen: Chosen) -> Result<Designed, Failure> {
     // point the shortest whose quantized taps meet it.
     let given = |e: DesignError| {
         match (chosen.length, e) {
+        (Some(len), e @ DesignError::NoConvergence { .. }) => Failure::plain(format!(
+            "design: equiripple, {len} taps: {e}; a length far beyond what the spec needs has an optimal error below what 64-bit arithmetic resolves, so leave the length out (the search finds the shortest) or ask for fewer taps"
+        )),
         (Some(len), e) => Failure::plain(format!("design: equiripple, {len} taps: {e}")),
         (None, DesignError::SpecNotMet { taps }) => chosen.edges_at.fail(format!(
-            "no equiripple design of up to {taps} taps meets the spec in {} (the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
+            "no equiripple design of up to {taps} taps meets the spec in {} (the search tried lengths up to {taps}; the library's limit is {MAX_EQUIRIPPLE_TAPS} taps): expected a wider transition band, less attenuation, a wider format, or method window",
             chosen.format.name()
         )),
         (None, DesignError::InvalidTransition) => chosen.edges_at.fail(format!(
@@ -353,6 +356,13 @@ impl Designed {
             m.stopband_attenuation_db,
             m.stopband.max_at_hz,
             Self::meets(m)
+        );
+        let _ = writeln!(
+            t,
+            "transition bands: largest gain {:+.2} dB at {:.2} Hz (the passband's limit {:+.2} dB)",
+            m.transition_peak_db(),
+            m.transition.max_at_hz,
+            20.0 * m.transition_limit().log10()
         );
         match &self.proof {
             Some((h, b)) => {

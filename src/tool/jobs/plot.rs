@@ -158,6 +158,7 @@ enum Swatch {
     Dashed { color: RGBColor, width: u32 },
     Fill(RGBAColor),
     Diamond(RGBColor),
+    Triangle(RGBColor),
 }
 
 /// One legend entry.
@@ -262,6 +263,13 @@ fn panel<'b>(
                 let c = (x0 + x1) / 2;
                 legend_rows.draw(&Polygon::new(
                     vec![(c - 7, y), (c, y - 7), (c + 7, y), (c, y + 7)],
+                    color.filled(),
+                ))?;
+            }
+            Swatch::Triangle(color) => {
+                let c = (x0 + x1) / 2;
+                legend_rows.draw(&Polygon::new(
+                    vec![(c - 7, y + 6), (c + 7, y + 6), (c, y - 7)],
                     color.filled(),
                 ))?;
             }
@@ -440,14 +448,28 @@ fn magnitude(f: &Figure, area: &Area, half: f64) -> Drawn {
         ));
     }
     taps_keys(&mut keys, float.is_some(), &f.shipped_label);
-    let worst = f
-        .spec
-        .and_then(|c| c.spec.measure(&f.shipped).ok())
+    let measured = f.spec.and_then(|c| c.spec.measure(&f.shipped).ok());
+    let worst = measured
+        .as_ref()
         .map(|m| (m.stopband.max_at_hz, -m.stopband_attenuation_db));
     if let Some((at, g)) = worst {
         keys.push(key(
             format!("worst stopband point: {g:.2} dB at {}", engineering(at, 4)),
             Swatch::Diamond(SHIPPED_COLOR),
+        ));
+    }
+    // Only a plan with transition bands has a transition peak to show.
+    let transition = measured
+        .as_ref()
+        .filter(|m| m.transition.max_at_hz.is_finite())
+        .map(|m| (m.transition.max_at_hz, m.transition_peak_db()));
+    if let Some((at, peak)) = transition {
+        keys.push(key(
+            format!(
+                "largest transition gain: {peak:+.2} dB at {}",
+                engineering(at, 4)
+            ),
+            Swatch::Triangle(LIMIT_COLOR),
         ));
     }
     let chart_area = panel(area, "magnitude response", &keys)?;
@@ -492,6 +514,17 @@ fn magnitude(f: &Figure, area: &Area, half: f64) -> Drawn {
         chart.draw_series(std::iter::once(Polygon::new(
             vec![(x - dx, g), (x, g + dy), (x + dx, g), (x, g - dy)],
             SHIPPED_COLOR.filled(),
+        )))?;
+    }
+    // The largest transition-band gain (where an equiripple design would overshoot): an upward
+    // triangle, clamped to the axis so that it stays on the page; its figures are in the legend.
+    if let Some((at, peak)) = transition {
+        let r = axis.range();
+        let g = peak.clamp(low, high);
+        let (x, dx, dy) = (axis.x(at), (r.end - r.start) * 0.006, (high - low) * 0.014);
+        chart.draw_series(std::iter::once(Polygon::new(
+            vec![(x - dx, g - dy), (x + dx, g - dy), (x, g + dy)],
+            LIMIT_COLOR.filled(),
         )))?;
     }
     Ok(())
