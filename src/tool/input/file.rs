@@ -168,7 +168,7 @@ pub fn read_bytes(path: &Path) -> Result<Vec<u8>, Failure> {
 }
 
 /// The whole of a small input as text: [`read_bytes`], then the one decoding of
-/// [`text::decode`](crate::tool::input::text::decode) (UTF-8 byte-order mark dropped, UTF-16
+/// `text::decode` (UTF-8 byte-order mark dropped, UTF-16
 /// refused by name, a byte that is not text refused at its line, column and byte offset).
 pub fn read_text(path: &Path) -> Result<String, Failure> {
     crate::tool::input::text::decode(path, read_bytes(path)?)
