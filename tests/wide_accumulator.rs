@@ -1,6 +1,8 @@
 //! The one-line 128-bit-accumulator constructors (`Fir::new_wide`, `FirUpTo::with_taps_wide`,
 //! `MultiChannelFir::new_wide`, `MultiChannelFirUpTo::with_taps_wide`,
-//! `LinearPhaseFir::new_wide`) against the exact `i128` model of `tests/common`, bit for bit:
+//! `LinearPhaseFir::new_wide`, and the rate changers' `Decimator::new_wide`,
+//! `DecimatorUpTo::with_taps_wide`, `Interpolator::new_wide`, `Resampler::new_wide`,
+//! `HalfBandDecimator::new_wide`) against the exact `i128` model of `tests/common`, bit for bit:
 //! every rounding mode, inputs that saturate, per sample and for random block splits. The taps
 //! are drawn over the whole Q31 range (extremes over-represented), so most tap sets have
 //! Σ|h| ≥ 2 and are refused by the `i64` default: the test counts them, to show the wide path
@@ -12,11 +14,16 @@ mod structure_models;
 use common::*;
 use fixed::types::I1F31;
 use proptest::prelude::*;
-use structure_models::{any_rounding, code, overflows, signal, splits};
-use tapline::filter::{FirUpTo, MultiChannelFirUpTo};
+use structure_models::{
+    any_rounding, code, fir_finished, keep_every, overflows, signal, splits, upfirdn_finished,
+};
+use tapline::filter::{DecimatorUpTo, FirUpTo, MultiChannelFirUpTo};
 use tapline::kernel::FoldMulAcc;
 use tapline::num::{Acc128, FixedPoint};
-use tapline::{Fir, LinearPhaseFir, MulAcc, MultiChannelFir, Rounding};
+use tapline::{
+    Decimator, Fir, HalfBandDecimator, Interpolator, LinearPhaseFir, MulAcc, MultiChannelFir,
+    Resampler, Rounding,
+};
 
 /// The model's outputs and saturation count for taps `h` on input `x`.
 fn model<S: Raw>(h: &[i64], x: &[i64], mode: Rounding) -> (Vec<S>, u32) {
@@ -168,6 +175,79 @@ where
     }
 }
 
+/// Finished model outputs as samples.
+fn samples<S: Raw>(finished: &[(i128, bool)]) -> Vec<S> {
+    finished
+        .iter()
+        .map(|&(v, _)| S::from_raw(v as i64))
+        .collect()
+}
+
+/// The rate changers' wide constructors on Q31 taps `h` (5 of them; the half-band form zeroes
+/// the taps at even, non-zero distance from the centre): each whole signal, streamed per sample
+/// and then flushed, equals the exact `upfirdn` model bit for bit (decimators from their
+/// default start phase M − 1, the interpolator, a 3/2 resampler); the half-band decimator,
+/// which has no flush, equals every second output of the exact FIR.
+fn check_rate_changers(h: &[i64], x: &[i64], mode: Rounding) {
+    let taps: [i32; 5] = core::array::from_fn(|k| h[k] as i32);
+    let xs: Vec<i32> = x.iter().map(|&v| v as i32).collect();
+    let model = |factors| samples::<i32>(&upfirdn_finished(h, x, factors, 31, 32, mode));
+    let flushed = |mut got: Vec<i32>, tail: usize, flush: &mut dyn FnMut(&mut [i32]) -> usize| {
+        let mut rest = vec![0; tail];
+        assert_eq!(flush(&mut rest), tail);
+        got.extend(rest);
+        got
+    };
+
+    let mut dec = Decimator::<i32, 5, 3>::new_wide(&taps)
+        .unwrap()
+        .with_rounding(mode);
+    let got: Vec<i32> = xs.iter().filter_map(|&v| dec.push(v)).collect();
+    let tail = dec.tail_len();
+    let got = flushed(got, tail, &mut |o| dec.flush(o).unwrap());
+    assert_eq!(got, model((1, 3, 2)), "decimator, taps {h:?}, {mode:?}");
+
+    let mut up_to = DecimatorUpTo::<i32, 8, 3>::with_taps_wide(&taps[..])
+        .unwrap()
+        .with_rounding(mode);
+    let got: Vec<i32> = xs.iter().filter_map(|&v| up_to.push(v)).collect();
+    let tail = up_to.tail_len();
+    let got = flushed(got, tail, &mut |o| up_to.flush(o).unwrap());
+    assert_eq!(
+        got,
+        model((1, 3, 2)),
+        "run-time decimator, taps {h:?}, {mode:?}"
+    );
+
+    let mut up = Interpolator::<i32, 5, 2>::new_wide(&taps)
+        .unwrap()
+        .with_rounding(mode);
+    let got: Vec<i32> = xs.iter().flat_map(|&v| up.push(v)).collect();
+    let tail = up.tail_len();
+    let got = flushed(got, tail, &mut |o| up.flush(o).unwrap());
+    assert_eq!(got, model((2, 1, 0)), "interpolator, taps {h:?}, {mode:?}");
+
+    let mut rs = Resampler::<i32, 4>::new_wide(&taps, 3, 2)
+        .unwrap()
+        .with_rounding(mode);
+    let mut got = vec![0; rs.outputs_for(xs.len())];
+    assert_eq!(rs.process(&xs, &mut got).unwrap(), got.len());
+    let tail = rs.tail_len();
+    let got = flushed(got, tail, &mut |o| rs.flush(o).unwrap());
+    assert_eq!(got, model((3, 2, 0)), "resampler, taps {h:?}, {mode:?}");
+
+    let half: Vec<i64> = (0..5)
+        .map(|k| if k % 2 == 0 && k != 2 { 0 } else { h[k] })
+        .collect();
+    let half_taps: [i32; 5] = core::array::from_fn(|k| half[k] as i32);
+    let mut hb = HalfBandDecimator::<i32, 5>::new_wide(&half_taps)
+        .unwrap()
+        .with_rounding(mode);
+    let got: Vec<i32> = xs.iter().filter_map(|&v| hb.push(v)).collect();
+    let want = samples::<i32>(&keep_every(&fir_finished(&half, x, 31, 32, mode), 2));
+    assert_eq!(got, want, "half-band, taps {half:?}, {mode:?}");
+}
+
 proptest! {
     #![proptest_config(cases::config())]
 
@@ -184,6 +264,7 @@ proptest! {
         check_multi::<i32, 5>(&h[..5], &x, &sizes, mode);
         check_linear_phase::<i32, 7>(&h, &x, &sizes, mode);
         check_linear_phase::<i32, 6>(&h, &x, &sizes, mode);
+        check_rate_changers(&h[..5], &x, mode);
     }
 
     #[test]

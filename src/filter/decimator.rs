@@ -7,7 +7,7 @@ use super::shared::{
 };
 use super::taps::TapTable;
 use crate::headroom::CheckedTaps;
-use crate::num::{Acc32Checked, DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::num::{Acc32Checked, Acc128, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 use core::num::NonZeroUsize;
@@ -281,6 +281,63 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample, W: RuntimeC
     /// ```
     pub fn with_accumulator(taps: &'a [T; N]) -> Result<Self, Error> {
         Self::checked(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const M: usize, T: Sample> Decimator<'a, S, N, M, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The decimator of [`new`](Decimator::new) with the 128-bit accumulator [`Acc128`]: one
+    /// line for `Decimator::<S, N, M, T, Acc128>::with_accumulator(taps)`, for 32-bit samples
+    /// whose `i64` default refuses tap sets with Σ|h| near 2 or more. Start phase M − 1.
+    ///
+    /// * **Accumulator:** `i128`, exact for any tap set that fits in memory.
+    /// * **Rounding / saturation:** the one output step of every filter ([`Rounding::HalfUp`](crate::Rounding::HalfUp)
+    ///   unless `with_rounding` says otherwise), clamped and counted.
+    /// * **Cost:** about twice the additions of `i64` on a 32-bit core.
+    ///
+    /// # Errors
+    /// None in practice: [`Error::AccumulatorOverflow`] only for a table too long to exist.
+    ///
+    /// ```
+    /// use tapline::Decimator;
+    /// static GAIN_3: [i32; 3] = [i32::MIN; 3]; // Σ|h| = 3 in Q31: refused by Decimator::new
+    /// assert!(Decimator::<i32, 3, 3>::new(&GAIN_3).is_err());
+    /// let mut dec = Decimator::<i32, 3, 3>::new_wide(&GAIN_3)?;
+    /// let outputs: Vec<_> = [1 << 20; 3].iter().filter_map(|&x| dec.push(x)).collect();
+    /// assert_eq!(outputs, [-(3 << 20)]); // exact: −3 · 2^-11
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<Decimator<'a, S, N, M, T, Acc128>, Error> {
+        Decimator::with_accumulator(taps)
+    }
+}
+
+impl<'a, S, const N: usize, const M: usize, T: Sample> DecimatorUpTo<'a, S, N, M, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The run-time tap set of [`with_taps`](DecimatorUpTo::with_taps) (1 to `N` taps) with
+    /// the 128-bit accumulator [`Acc128`]: one line for
+    /// `DecimatorUpTo::<S, N, M, T, Acc128>::with_taps(taps)`. Numeric contract as
+    /// [`new_wide`](Decimator::new_wide).
+    ///
+    /// # Errors
+    /// [`Error::NoTaps`], [`Error::TooManyTaps`]; [`Error::AccumulatorOverflow`] only for a
+    /// table too long to exist.
+    ///
+    /// ```
+    /// use tapline::filter::DecimatorUpTo;
+    /// let loud = [i32::MIN; 3];
+    /// let mut dec = DecimatorUpTo::<i32, 8, 3>::with_taps_wide(&loud)?;
+    /// let outputs: Vec<_> = [i32::MIN; 3].iter().filter_map(|&x| dec.push(x)).collect();
+    /// assert_eq!(outputs, [i32::MAX]); // +3.0, summed exactly, clamps (counted)
+    /// assert_eq!(dec.saturations(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_taps_wide(taps: &'a [T]) -> Result<DecimatorUpTo<'a, S, N, M, T, Acc128>, Error> {
+        DecimatorUpTo::with_taps(taps)
     }
 }
 

@@ -4,7 +4,7 @@
 use super::GroupDelay;
 use super::decimator::Decimation;
 use super::shared::{decimate_block, decimate_in_place, history_dot_strided, output_controls};
-use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::num::{Acc128, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 
@@ -98,6 +98,35 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample, W: RuntimeChecked>
             core: Decimation::new(),
             width: PhantomData,
         })
+    }
+}
+
+impl<'a, S, const N: usize, T: Sample> HalfBandDecimator<'a, S, N, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The half-band decimator of [`new`](HalfBandDecimator::new) with the 128-bit
+    /// accumulator [`Acc128`]: one line for
+    /// `HalfBandDecimator::<S, N, T, Acc128>::with_accumulator(taps)`.
+    ///
+    /// * **Accumulator:** `i128`, exact for any tap set that fits in memory.
+    /// * **Rounding / saturation:** the one output step of every filter ([`Rounding::HalfUp`](crate::Rounding::HalfUp)
+    ///   unless `with_rounding` says otherwise), clamped and counted.
+    /// * **Cost:** about twice the additions of `i64` on a 32-bit core.
+    ///
+    /// # Errors
+    /// [`Error::NotHalfBand`] as for [`new`](HalfBandDecimator::new);
+    /// [`Error::AccumulatorOverflow`] only for a table too long to exist.
+    ///
+    /// ```
+    /// use tapline::HalfBandDecimator;
+    /// // Q31 [−1, −1, −1]: half-band (no even, non-zero distance), Σ|h| = 3.
+    /// static LOUD: [i32; 3] = [i32::MIN; 3];
+    /// assert!(HalfBandDecimator::<i32, 3>::new(&LOUD).is_err());
+    /// assert!(HalfBandDecimator::<i32, 3>::new_wide(&LOUD).is_ok());
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<HalfBandDecimator<'a, S, N, T, Acc128>, Error> {
+        HalfBandDecimator::with_accumulator(taps)
     }
 }
 

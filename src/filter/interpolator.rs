@@ -6,7 +6,7 @@ use super::GroupDelay;
 use super::shared::{
     OutputStep, Tail, history_dot_strided, output_controls, phase_output, phases_fit,
 };
-use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::num::{Acc128, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 use core::num::NonZeroUsize;
@@ -103,6 +103,38 @@ impl<'a, S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W: RuntimeC
             output: OutputStep::new(),
             width: PhantomData,
         })
+    }
+}
+
+impl<'a, S, const N: usize, const L: usize, T: Sample> Interpolator<'a, S, N, L, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The interpolator of [`new`](Interpolator::new) with the 128-bit accumulator
+    /// [`Acc128`]: one line for `Interpolator::<S, N, L, T, Acc128>::with_accumulator(taps)`.
+    ///
+    /// * **Accumulator:** `i128`, exact for any tap set that fits in memory.
+    /// * **Rounding / saturation:** the one output step of every filter ([`Rounding::HalfUp`](crate::Rounding::HalfUp)
+    ///   unless `with_rounding` says otherwise), clamped and counted.
+    /// * **Cost:** about twice the additions of `i64` on a 32-bit core.
+    ///
+    /// # Errors
+    /// None in practice: [`Error::AccumulatorOverflow`] only for a table too long to exist.
+    ///
+    /// ```
+    /// use tapline::Interpolator;
+    /// static LOUD: [i32; 4] = [i32::MIN; 4]; // each phase sums to −2 in Q31
+    /// assert!(Interpolator::<i32, 4, 2>::new(&LOUD).is_err());
+    /// let mut up = Interpolator::<i32, 4, 2>::new_wide(&LOUD)?;
+    /// assert_eq!(up.push(1 << 20), [-(1 << 20); 2]);
+    /// assert_eq!(up.push(1 << 20), [-(2 << 20); 2]); // each phase sums two taps: exact
+    /// assert_eq!(up.push(i32::MIN), [i32::MAX - ((1 << 20) - 1); 2]); // 1 − 2^-11
+    /// assert_eq!(up.push(i32::MIN), [i32::MAX; 2]); // +2.0, summed exactly, clamps
+    /// assert_eq!(up.saturations(), 2);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(taps: &'a [T; N]) -> Result<Interpolator<'a, S, N, L, T, Acc128>, Error> {
+        Interpolator::with_accumulator(taps)
     }
 }
 

@@ -6,7 +6,7 @@ use super::GroupDelay;
 use super::shared::{
     OutputStep, Tail, fill_block, history_dot_strided, output_controls, phase_output, phases_fit,
 };
-use crate::num::{DefaultAcc, MulAcc, RuntimeChecked, Sample};
+use crate::num::{Acc128, DefaultAcc, MulAcc, RuntimeChecked, Sample};
 use crate::{Error, Ring};
 use core::marker::PhantomData;
 use core::num::{NonZeroU16, NonZeroU128, NonZeroUsize};
@@ -110,6 +110,42 @@ impl<'a, S: MulAcc<T>, const C: usize, T: Sample> Resampler<'a, S, C, T> {
     /// ```
     pub fn new(taps: &'a [T], up: u16, down: u16) -> Result<Self, Error> {
         Self::with_accumulator(taps, up, down)
+    }
+}
+
+impl<'a, S, const C: usize, T: Sample> Resampler<'a, S, C, T>
+where
+    S: MulAcc<T> + MulAcc<T, Acc128>,
+{
+    /// The resampler of [`new`](Resampler::new) with the 128-bit accumulator [`Acc128`]: one
+    /// line for `Resampler::<S, C, T, Acc128>::with_accumulator(taps, up, down)`.
+    ///
+    /// * **Accumulator:** `i128`, exact for any tap set that fits in memory.
+    /// * **Rounding / saturation:** the one output step of every filter
+    ///   ([`Rounding::HalfUp`](crate::Rounding::HalfUp) unless `with_rounding` says
+    ///   otherwise), clamped and counted.
+    /// * **Cost:** about twice the additions of `i64` on a 32-bit core.
+    ///
+    /// # Errors
+    /// As [`new`](Resampler::new), except that [`Error::AccumulatorOverflow`] comes only for a
+    /// table too long to exist.
+    ///
+    /// ```
+    /// use tapline::Resampler;
+    /// static LOUD: [i32; 4] = [i32::MIN; 4]; // one phase of four −1.0 taps at L = 1
+    /// assert!(Resampler::<i32, 4>::new(&LOUD, 1, 2).is_err());
+    /// let mut rs = Resampler::<i32, 4>::new_wide(&LOUD, 1, 2)?;
+    /// let mut out = [0i32; 2];
+    /// assert_eq!(rs.process(&[1 << 20; 4], &mut out)?, 2);
+    /// assert_eq!(out, [-(1 << 20), -(3 << 20)]); // y[0], y[2]: exact
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn new_wide(
+        taps: &'a [T],
+        up: u16,
+        down: u16,
+    ) -> Result<Resampler<'a, S, C, T, Acc128>, Error> {
+        Resampler::with_accumulator(taps, up, down)
     }
 }
 
