@@ -1032,6 +1032,7 @@ macro_rules! flushing {
 flushing!(Decimator<'a, S, N, M, T, W, H>, ['a, S: MulAcc<T, W>, const N: usize, const M: usize, T: Sample + 'a, W, H: tapline::filter::TapTable<'a, T, N>]);
 flushing!(Interpolator<'_, S, N, L, T, W>, [S: MulAcc<T, W>, const N: usize, const L: usize, T: Sample, W]);
 flushing!(Resampler<'_, S, C, T, W>, [S: MulAcc<T, W>, const C: usize, T: Sample, W]);
+flushing!(HalfBandDecimator<'_, S, N, T, W>, [S: MulAcc<T, W>, const N: usize, T: Sample, W]);
 
 /// Two whole signals, one after the other, each streamed in blocks cut by `sizes` and then
 /// flushed, against the exact upfirdn model (`factors` = (L, M, start phase)): upfirdn's length
@@ -1153,6 +1154,36 @@ where
     check_whole_signals(&mut rs, h, (l, m, 0), T::FRAC, run);
 }
 
+/// A half-band decimator on `h` with the taps at even, non-zero distance from the centre
+/// zeroed, from start phase `phase` (refusing 2), against the exact upfirdn model by 2.
+fn whole_half_band<S, T, W, const N: usize>(h: &[i64], phase: usize, run: &WholeRun<'_>)
+where
+    S: MulAcc<T, W> + FixedPoint + Raw,
+    T: Sample + Raw,
+    W: RuntimeChecked,
+{
+    let c = N / 2;
+    let h: Vec<i64> = (0..N)
+        .map(|k| if k != c && k.abs_diff(c) % 2 == 0 { 0 } else { h[k] })
+        .collect();
+    let taps: [T; N] = table(&h);
+    let hb = HalfBandDecimator::<S, N, T, W>::with_accumulator(&taps).unwrap();
+    assert_eq!(hb.start_phase(), 1, "the default start phase");
+    let refused = HalfBandDecimator::<S, N, T, W>::with_accumulator(&taps)
+        .unwrap()
+        .with_start_phase(2)
+        .err();
+    assert_eq!(
+        refused,
+        Some(Error::StartPhaseTooLarge {
+            phase: 2,
+            factor: 2
+        })
+    );
+    let mut hb = hb.with_rounding(run.mode).with_start_phase(phase).unwrap();
+    check_whole_signals(&mut hb, &h, (1, 2, phase), T::FRAC, run);
+}
+
 /// A second, shorter signal (to follow a flush).
 fn next_signal(bits: u32) -> impl Strategy<Value = Vec<i64>> {
     prop::collection::vec(code(bits), 0..40)
@@ -1196,6 +1227,23 @@ proptest! {
             whole_interpolator::<I4F12, I1F15, DefaultAcc, N, L>(&seed16[..N], &run16);
             whole_interpolator::<i32, i32, Acc128, N, L>(&seed32[..N], &run32);
         }));
+    }
+
+    /// Half-band decimators from both start phases, streamed and flushed = the exact upfirdn
+    /// model by 2, bit for bit (the flush sums the zero taps too: they add nothing).
+    #[test]
+    fn half_band_whole_signals_equal_the_upfirdn_model(
+            n in prop::sample::select(vec![1usize, 3, 5, 7, 11]), phase in 0usize..2,
+            seed16 in scaled_codes(16, 11), seed32 in scaled_codes(32, 11),
+            x16 in signal(16), y16 in next_signal(16), x32 in signal(32), y32 in next_signal(32),
+            sizes in splits(), mode in any_rounding()) {
+        let run16 = WholeRun { signals: [&x16, &y16], sizes: &sizes, mode };
+        let run32 = WholeRun { signals: [&x32, &y32], sizes: &sizes, mode };
+        with_const!(n, [1, 3, 5, 7, 11], |N| {
+            whole_half_band::<i16, i16, DefaultAcc, N>(&seed16, phase, &run16);
+            whole_half_band::<I4F12, I1F15, DefaultAcc, N>(&seed16, phase, &run16);
+            whole_half_band::<i32, i32, Acc128, N>(&seed32, phase, &run32);
+        });
     }
 
     /// Resamplers by L/M (1 to 6 each, not reduced) streamed and flushed = the exact upfirdn

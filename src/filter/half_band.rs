@@ -184,7 +184,106 @@ impl<S: MulAcc<T, W>, const N: usize, T: Sample, W> HalfBandDecimator<'_, S, N, 
         (N - Self::FIRST_ODD).div_ceil(2) + 1
     }
 
-    /// Zero history, phase 0, zero saturation count; taps and rounding stay.
+    /// Keeps full-rate output `phase` (0 or 1) first, then every second one, counting from
+    /// the next input; as [`Decimator::with_start_phase`](crate::Decimator::with_start_phase).
+    /// The default is 1 (an output on every second input); 0 is what
+    /// `scipy.signal.upfirdn(h, x, 1, 2)` keeps.
+    ///
+    /// # Errors
+    /// [`Error::StartPhaseTooLarge`] when `phase` ≥ 2.
+    ///
+    /// ```
+    /// use tapline::{Error, HalfBandDecimator};
+    /// static HALF_BAND: [i16; 3] = [8192, 16384, 8192]; // ¼, ½, ¼
+    /// let mut hb = HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?.with_start_phase(0)?;
+    /// assert_eq!(hb.start_phase(), 0);
+    /// assert_eq!(hb.push(4000), Some(1000)); // y[0] = h[0] · x[0] = ¼ · 4000
+    /// assert_eq!(hb.push(4000), None);
+    /// assert_eq!(HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?.with_start_phase(2).err(),
+    ///     Some(Error::StartPhaseTooLarge { phase: 2, factor: 2 }));
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn with_start_phase(mut self, phase: usize) -> Result<Self, Error> {
+        self.set_start_phase(phase)?;
+        Ok(self)
+    }
+
+    /// Sets the start phase and restarts the count from it, as
+    /// [`Decimator::set_start_phase`](crate::Decimator::set_start_phase); history, taps and
+    /// saturation count stay.
+    ///
+    /// # Errors
+    /// [`Error::StartPhaseTooLarge`] when `phase` ≥ 2; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::HalfBandDecimator;
+    /// static HALF_BAND: [i16; 3] = [8192, 16384, 8192];
+    /// let mut hb = HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?;
+    /// assert_eq!(hb.push(4000), None); // default start phase 1
+    /// hb.set_start_phase(0)?;
+    /// assert_eq!(hb.push(4000), Some(3000)); // ½ · 4000 + ¼ · 4000
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn set_start_phase(&mut self, phase: usize) -> Result<(), Error> {
+        self.core.set_start_phase(phase)
+    }
+
+    /// Which full-rate output (modulo 2) is kept first: 1 by default.
+    ///
+    /// ```
+    /// use tapline::HalfBandDecimator;
+    /// static HALF_BAND: [i16; 3] = [8192, 16384, 8192];
+    /// assert_eq!(HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?.start_phase(), 1);
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub const fn start_phase(&self) -> usize {
+        self.core.start_phase()
+    }
+
+    /// How many outputs [`flush`](HalfBandDecimator::flush) writes now: the kept ones of the
+    /// N − 1 full-rate outputs after the last input, as
+    /// [`Decimator::tail_len`](crate::Decimator::tail_len).
+    ///
+    /// ```
+    /// use tapline::HalfBandDecimator;
+    /// static HALF_BAND: [i16; 3] = [8192, 16384, 8192];
+    /// let mut hb = HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?.with_start_phase(0)?;
+    /// hb.process(&[100; 5], &mut [0; 3])?; // full-rate 0, 2, 4
+    /// assert_eq!(hb.tail_len(), 1); // 6 of 0 … 6
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    #[must_use]
+    pub fn tail_len(&self) -> usize {
+        self.core.tail().len(N)
+    }
+
+    /// Ends a finite signal: writes the [`tail_len`](HalfBandDecimator::tail_len) outputs that
+    /// N − 1 zero inputs would give, without pushing them, and returns how many; then zero
+    /// history and the start phase again, the saturation count kept, as
+    /// [`Decimator::flush`](crate::Decimator::flush). The tail sums every tap against the
+    /// history (the zero taps add nothing), so the bits are those of
+    /// [`push`](HalfBandDecimator::push).
+    ///
+    /// # Errors
+    /// [`Error::OutputTooShort`] when `output` is shorter than the tail; nothing changes then.
+    ///
+    /// ```
+    /// use tapline::HalfBandDecimator;
+    /// static HALF_BAND: [i16; 3] = [8192, 16384, 8192];
+    /// let mut hb = HalfBandDecimator::<i16, 3>::new(&HALF_BAND)?.with_start_phase(0)?;
+    /// let mut out = [0i16; 4];
+    /// assert_eq!(hb.process(&[400, 800, 1200, 1600, 2000], &mut out)?, 3);
+    /// assert_eq!(hb.flush(&mut out[3..])?, 1);
+    /// assert_eq!(out, [100, 800, 1600, 500]); // the last: ¼ · 2000
+    /// # Ok::<(), tapline::Error>(())
+    /// ```
+    pub fn flush(&mut self, output: &mut [S]) -> Result<usize, Error> {
+        self.core.flush::<T, W>(self.taps, output)
+    }
+
+    /// Zero history, the count back at the start phase, zero saturation count; taps, start
+    /// phase and rounding stay.
     pub fn reset(&mut self) {
         self.core.reset();
     }

@@ -289,6 +289,10 @@ fn exercise_structures(b16: &mut [i16; 64], b32: &mut [i32; 64], len: usize, rou
     if let Ok(mut f) = HalfBandDecimator::<i16, 7>::new(black_box(&HALF_BAND)) {
         black_box(f.push(b16[3]));
         black_box(f.process_in_place(&mut b16[..len]));
+        let _ = black_box(f.set_start_phase(black_box(len % 3)));
+        black_box((f.start_phase(), f.tail_len()));
+        let mut out = [0i16; 4];
+        let _ = black_box(f.flush(out.get_mut(..black_box(len % 5)).unwrap_or_default()));
     }
     let mut cic = CicDecimator::<i16, 3, 8, 1>::new();
     black_box(cic.push(b16[4]));
