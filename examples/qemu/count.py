@@ -6,11 +6,12 @@ instruction, the guest PC in the second field of the bracket) and the ELF symbol
 `readelf`). A region starts when the PC reaches the entry of a `cost_*` function and ends when
 control is back in `bench_main`, so instructions of anything the function calls are included.
 
-Usage: qemu-system-arm ... -singlestep -d exec,nochain 2>&1 >stdout.txt | count.py ELF BOARD [STDOUT]
+Usage: qemu-system-arm ... -singlestep -d exec,nochain 2>&1 >stdout.txt | count.py ELF BOARD [STDOUT [PROCESS]]
 Prints a Markdown table: instructions per tap per output for block and per-sample calls, the
 code size of every function the region ran, and the filter state size that the firmware printed
 over semihosting (lines "state TYPE TAPS BYTES" in STDOUT); then the stack bytes of each
-streaming call (lines "stack TYPE TAPS PUSH PROCESS IN_PLACE_64 IN_PLACE_256" in STDOUT).
+streaming call (lines "stack TYPE TAPS PUSH IN_PLACE_64 IN_PLACE_256" in STDOUT, and
+"process-stack TYPE TAPS BYTES" in PROCESS, the output of the build with `process-stack`).
 
 count.py --compare COMMITTED MEASURED: the regression guard behind `measure --check`.
 """
@@ -117,13 +118,20 @@ def main():
 
     states = {}
     stacks = {}
+    processes = {}
     if states_file:
         for line in open(states_file, encoding="utf-8"):
             parts = line.split()
             if len(parts) == 4 and parts[0] == "state":
                 states[(parts[1], parts[2])] = parts[3]
-            if len(parts) == 7 and parts[0] == "stack":
+            if len(parts) == 6 and parts[0] == "stack":
                 stacks[(parts[1], int(parts[2]))] = [int(p) for p in parts[3:]]
+    # `process` figures come from a second run of the firmware built with `process-stack`.
+    if len(sys.argv) > 4:
+        for line in open(sys.argv[4], encoding="utf-8"):
+            parts = line.split()
+            if len(parts) == 4 and parts[0] == "process-stack":
+                processes[(parts[1], int(parts[2]))] = int(parts[3])
 
     print(f"### {board}\n")
     print("| samples | taps | block 64: instr/tap/output | block 256 | per sample (call included) "
@@ -155,8 +163,10 @@ def main():
     print("|---|---|---|---|---|---|")
     for (ty, taps) in keys:
         figures = stacks.get((ty, taps))
-        if figures is None:
+        process = processes.get((ty, taps))
+        if figures is None or process is None:
             sys.exit(f"count.py: the firmware printed no stack figures for {ty} {taps}")
+        figures.insert(1, process)
         if max(figures) >= STACK_PAINT_BYTES:
             sys.exit(f"count.py: {ty} {taps} reached the bottom of the painted stack area")
         print(f"| {LABELS[ty]} | {taps} | " + " | ".join(str(f) for f in figures) + " |")
