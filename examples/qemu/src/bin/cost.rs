@@ -123,17 +123,106 @@ macro_rules! paste_costs {
         fn sample(fir: &mut $fir, x: $ty) -> $out {
             fir.push(x)
         }
+        // Only in the build with the `process-stack` feature: a second caller of the block
+        // code changes how LTO shares it, and so the instruction counts of the regions above.
+        #[cfg(feature = "process-stack")]
+        #[inline(never)]
+        fn process64(fir: &mut $fir, input: &[$ty; 64], output: &mut [$ty; 64]) {
+            let _ = black_box(fir.process(input, output));
+        }
         // Warm the history so every measured output sums N real samples.
         let mut warm = block;
         block256(&mut fir, &mut warm);
         let mut b64 = [0 as $ty; 64];
         b64.copy_from_slice(&block[..64]);
+        paint_stack();
         block64(black_box(&mut fir), black_box(&mut b64));
+        let in_place64 = stack_used();
+        paint_stack();
         block256(black_box(&mut fir), black_box(&mut block));
+        let in_place256 = stack_used();
+        let mut push = 0;
         for i in 0..64 {
+            paint_stack();
             black_box(sample(black_box(&mut fir), black_box(block[i])));
+            push = push.max(stack_used());
+        }
+        hprintln!(
+            "stack {} {} {} {} {}",
+            stringify!($name), $n, push, in_place64, in_place256
+        );
+        // After the counted regions, so the extra call does not enter their averages.
+        #[cfg(feature = "process-stack")]
+        {
+            let mut out64 = [0 as $ty; 64];
+            paint_stack();
+            process64(black_box(&mut fir), black_box(&b64), black_box(&mut out64));
+            hprintln!("process-stack {} {} {}", stringify!($name), $n, stack_used());
         }
     }};
+}
+
+/// Bytes below the stack pointer that `paint_stack` fills and `stack_used` scans: more than any
+/// measured call needs (a call that reaches the bottom is reported as this figure and fails the
+/// harness).
+const STACK_PAINT_BYTES: usize = 2048;
+/// The paint pattern; a word the measured calls are not expected to leave on their stack.
+const STACK_PAINT: u32 = 0xC5AC_C5AC;
+
+/// Fills the `STACK_PAINT_BYTES` below the caller's stack pointer with `STACK_PAINT`. Inlined
+/// into `bench_main`, and the assembly touches no stack of its own, so the painted area starts
+/// exactly at the stack pointer of the call site that follows. Nothing lives below the stack
+/// pointer (no interrupts are enabled), so the writes clobber no Rust object.
+#[inline(always)]
+fn paint_stack() {
+    // SAFETY: writes only the free memory below SP (inside RAM: the firmware fails below if a
+    // call reaches the bottom, and both boards' stacks have far more than 2 KiB); moves no SP.
+    unsafe {
+        core::arch::asm!(
+            "mov {cur}, sp",
+            "2:",
+            "subs {cur}, {cur}, #4",
+            "str {pat}, [{cur}]",
+            "subs {n}, {n}, #1",
+            "bne 2b",
+            cur = out(reg) _,
+            n = inout(reg) STACK_PAINT_BYTES / 4 => _,
+            pat = in(reg) STACK_PAINT,
+            options(nostack),
+        );
+    }
+}
+
+/// Bytes below the stack pointer of the call site that the call since `paint_stack` wrote:
+/// the distance from SP down to the deepest word that no longer holds the pattern.
+#[inline(always)]
+fn stack_used() -> usize {
+    let untouched: usize;
+    // SAFETY: reads only the painted area below SP, with the same bounds as `paint_stack`.
+    unsafe {
+        core::arch::asm!(
+            "mov {cur}, sp",
+            "subs {cur}, {cur}, {bytes}",
+            "movs {k}, #0",
+            "2:",
+            "ldr {w}, [{cur}]",
+            "cmp {w}, {pat}",
+            "bne 3f",
+            "adds {cur}, {cur}, #4",
+            "adds {k}, {k}, #1",
+            "cmp {k}, {words}",
+            "bne 2b",
+            "3:",
+            cur = out(reg) _,
+            w = out(reg) _,
+            k = out(reg) untouched,
+            bytes = in(reg) STACK_PAINT_BYTES,
+            words = in(reg) STACK_PAINT_BYTES / 4,
+            pat = in(reg) STACK_PAINT,
+            options(nostack, readonly),
+        );
+    }
+    STACK_PAINT_BYTES - 4 * untouched
 }
 
 fn q15(n: usize) -> i16 {
