@@ -334,20 +334,17 @@ pub fn dot_block_q15_i32_finished(
 fn finish_four(sums: [i32; 4], offset: i32, even: i32, out: &mut [i16; 4], count: u32) -> u32 {
     let [a0, a1, a2, a3] = sums;
     let mut cnt = count;
-    if even == 0 {
-        // SAFETY: `out` is a `&mut [i16; 4]`: the four `strh` write its half-words at byte
-        // offsets 0, 2, 4, 6 (2-aligned, inside it); nothing else is read or written in
-        // memory; the stack is untouched; the flags and the Q flag are clobbered (no
-        // `preserves_flags`; nothing here or in Rust reads the Q flag). Every register
-        // written is an operand.
-        unsafe {
+    // The four steps of one kind and the operands both kinds share; `$own` adds the rounding
+    // registers of that kind.
+    macro_rules! four_steps {
+        ($kind:ident, $($own:tt)*) => {
             asm!(
-                q15_finish_step!(plain "{a0}", "0"),
-                q15_finish_step!(plain "{a1}", "2"),
-                q15_finish_step!(plain "{a2}", "4"),
-                q15_finish_step!(plain "{a3}", "6"),
+                q15_finish_step!($kind "{a0}", "0"),
+                q15_finish_step!($kind "{a1}", "2"),
+                q15_finish_step!($kind "{a2}", "4"),
+                q15_finish_step!($kind "{a3}", "6"),
+                $($own)*
                 out = in(reg) out.as_mut_ptr(),
-                t = in(reg) offset,
                 y = out(reg) _,
                 cnt = inout(reg) cnt,
                 a0 = inout(reg) a0 => _,
@@ -355,28 +352,19 @@ fn finish_four(sums: [i32; 4], offset: i32, even: i32, out: &mut [i16; 4], count
                 a2 = inout(reg) a2 => _,
                 a3 = inout(reg) a3 => _,
                 options(nostack),
-            );
-        }
-    } else {
-        // SAFETY: as above; `{t}` is a scratch register here, set from `{off}` per output.
-        unsafe {
-            asm!(
-                q15_finish_step!(parity "{a0}", "0"),
-                q15_finish_step!(parity "{a1}", "2"),
-                q15_finish_step!(parity "{a2}", "4"),
-                q15_finish_step!(parity "{a3}", "6"),
-                out = in(reg) out.as_mut_ptr(),
-                off = in(reg) offset,
-                even = in(reg) even,
-                t = out(reg) _,
-                y = out(reg) _,
-                cnt = inout(reg) cnt,
-                a0 = inout(reg) a0 => _,
-                a1 = inout(reg) a1 => _,
-                a2 = inout(reg) a2 => _,
-                a3 = inout(reg) a3 => _,
-                options(nostack),
-            );
+            )
+        };
+    }
+    // SAFETY: `out` is a `&mut [i16; 4]`: the four `strh` write its half-words at byte offsets
+    // 0, 2, 4, 6 (2-aligned, inside it); nothing else is read or written in memory; the stack
+    // is untouched; the flags and the Q flag are clobbered (no `preserves_flags`; nothing here
+    // or in Rust reads the Q flag). Every register written is an operand. In the half-even
+    // form `{t}` is a scratch register, set from `{off}` per output.
+    unsafe {
+        if even == 0 {
+            four_steps!(plain, t = in(reg) offset,);
+        } else {
+            four_steps!(parity, off = in(reg) offset, even = in(reg) even, t = out(reg) _,);
         }
     }
     cnt
