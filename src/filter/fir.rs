@@ -467,15 +467,20 @@ impl<'a, S: MulAcc<T, W>, const N: usize, T: Sample + 'a, W, H: TapTable<'a, T, 
         let rounding = self.output.rounding();
         // Counted in a local and added once: the counter's saturating add costs a store and a
         // load per call on cores without conditional execution.
-        let mut saturated = 0u32;
-        let mut slots = out.iter_mut();
-        S::dot_block(taps, span, |acc| {
-            let (y, clamped) = S::finish(acc, rounding);
-            saturated = saturated.wrapping_add(u32::from(clamped));
-            if let Some(slot) = slots.next() {
-                *slot = y;
-            }
-        });
+        let saturated = if let Some(saturated) = S::dot_block_fused(taps, span, rounding, out) {
+            saturated
+        } else {
+            let mut saturated = 0u32;
+            let mut slots = out.iter_mut();
+            S::dot_block(taps, span, |acc| {
+                let (y, clamped) = S::finish(acc, rounding);
+                saturated = saturated.wrapping_add(u32::from(clamped));
+                if let Some(slot) = slots.next() {
+                    *slot = y;
+                }
+            });
+            saturated
+        };
         self.output.count_events(saturated);
         self.history.commit(k);
     }

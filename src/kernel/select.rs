@@ -15,7 +15,7 @@
 #[cfg(all(target_arch = "arm", any(tapline_arm_dsp, tapline_armv6m)))]
 use super::arm;
 use super::portable;
-use crate::num::{Acc32, Acc32Checked, Acc128, DefaultAcc, Kernels, MulAcc};
+use crate::num::{Acc32, Acc32Checked, Acc128, DefaultAcc, Kernels, MulAcc, Rounding};
 use fixed::types::extra::{LeEqU16, LeEqU32};
 use fixed::{FixedI16, FixedI32};
 
@@ -63,7 +63,8 @@ portable_kernels! {
 macro_rules! chosen_kernels {
     ($( [$($gen:tt)*] $s:ty => $t:ty, $w:ty, $acc:ty;
         block: $block:ident if ($($block_cfg:tt)*);
-        reversed: $reversed:ident if ($($reversed_cfg:tt)*); )*) => {$(
+        reversed: $reversed:ident if ($($reversed_cfg:tt)*);
+        $(finished: $finished:ident if ($($finished_cfg:tt)*);)? )*) => {$(
         impl<$($gen)*> Kernels<$t, $w> for $s
         where
             $s: MulAcc<$t, $w, Acc = $acc>,
@@ -84,6 +85,25 @@ macro_rules! chosen_kernels {
                 let sum = portable::dot_reversed::<Self, $t, $w>(acc, taps, xs);
                 sum
             }
+
+            $(
+            #[inline(always)]
+            fn dot_block_fused(
+                taps: &[$t],
+                span: &[Self],
+                rounding: Rounding,
+                out: &mut [Self],
+            ) -> Option<u32> {
+                #[cfg(all(target_arch = "arm", $($finished_cfg)*))]
+                let fused = Some(arm::$finished(taps, span, rounding, out));
+                #[cfg(not(all(target_arch = "arm", $($finished_cfg)*)))]
+                let fused = {
+                    let _ = (taps, span, rounding, out);
+                    None
+                };
+                fused
+            }
+            )?
         }
     )*};
 }
@@ -102,10 +122,12 @@ chosen_kernels! {
     [P] i16 => i16, Acc32<P>, i32;
         block: dot_block_q15_i32 if (any(tapline_arm_dsp, tapline_armv6m));
         reversed: dot_reversed_q15_i32 if (tapline_arm_dsp);
+        finished: dot_block_q15_i32_finished if (tapline_arm_dsp);
     // The same 32-bit sum for taps checked at run time: the same kernels.
     [] i16 => i16, Acc32Checked, i32;
         block: dot_block_q15_i32 if (any(tapline_arm_dsp, tapline_armv6m));
         reversed: dot_reversed_q15_i32 if (tapline_arm_dsp);
+        finished: dot_block_q15_i32_finished if (tapline_arm_dsp);
     // f32 on the Cortex-M4F/M7 FPU: VLDM + VMLA.F32.
     [] f32 => f32, DefaultAcc, f32;
         block: dot_block_f32 if (tapline_arm_fpu);

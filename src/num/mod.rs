@@ -205,6 +205,37 @@ pub trait Kernels<T: Sample, W = DefaultAcc>: Sample {
     where
         Self: MulAcc<T, W>;
 
+    /// [`dot_block`](Kernels::dot_block) with the output step fused in, where this target has
+    /// such a kernel for this combination: each sum finished as [`MulAcc::finish`] does with
+    /// `rounding`, into the next slot of `out` (outputs past the end of `out` are computed and
+    /// counted, not stored), returning `Some(how many saturated)`. `None` (the default, and
+    /// every combination but Q15 with the proven 32-bit sum on Armv7E-M, which uses one `QADD`
+    /// of the rounding offset and one `SSAT` with the shift) means nothing was computed: the
+    /// caller finishes the sums of `dot_block` itself.
+    ///
+    /// **Numerics:** when `Some`, exactly `MulAcc::finish` on each sum of `dot_block`.
+    ///
+    /// ```
+    /// use tapline::{Rounding, num::Kernels};
+    /// let mut out = [0i16; 2];
+    /// // The default accumulator has no fused kernel: nothing is computed.
+    /// let fused = <i16 as Kernels<i16>>::dot_block_fused(&[16384], &[1, 2], Rounding::HalfUp, &mut out);
+    /// assert_eq!((fused, out), (None, [0, 0]));
+    /// ```
+    #[inline(always)]
+    fn dot_block_fused(
+        taps: &[T],
+        span: &[Self],
+        rounding: Rounding,
+        out: &mut [Self],
+    ) -> Option<u32>
+    where
+        Self: MulAcc<T, W>,
+    {
+        let _ = (taps, span, rounding, out);
+        None
+    }
+
     /// The single-output sum a filter runs per sample: `acc + Σ taps[k]·xs[len − 1 − k]` over
     /// `k < len = min(taps.len(), xs.len())` (taps forward against `xs` read backward from its
     /// last element: with `xs` a history ordered oldest→newest, the convolution sum).

@@ -16,7 +16,8 @@
 
 use super::{add_odd_tap, add_remaining, plain_sum, reversed_sum_i32};
 use crate::kernel::portable::{groups_of, singles};
-use crate::num::MulAcc;
+use crate::num::fixed_point::finish_fixed_i32;
+use crate::num::{MulAcc, Rounding};
 use core::arch::asm;
 
 /// The loop frame of every kernel here, as one assembly template: `{n}` holds the number of
@@ -248,6 +249,125 @@ fn portable_f32(acc: f32, taps: &[f32], xs: &[f32]) -> f32 {
 pub fn dot_block_q15_i32(taps: &[i16], span: &[i16], mut emit: impl FnMut(i32)) {
     let rest = groups_of::<_, _, 4>(taps.len(), span, |w| four_outputs(taps, w), &mut emit);
     singles(taps.len(), rest, |w| reversed_sum_i32(0, taps, w), emit);
+}
+
+/// Q15, one output step of a proven 32-bit sum `$a` into the half-word at `[{out}, #$at]`:
+/// the rounding offset `{off}` added with `QADD` (a sum within 2^14 of `i32::MAX` stays at
+/// `i32::MAX`, which still saturates to `i16::MAX` as the exact value would), one `SSAT` with
+/// the shift by 15, the store, and the saturation counted without a branch (`SSAT` changed the
+/// value exactly when the shifted sum and the result differ). `$parity` is empty, or adds bit 15
+/// of the sum (the lowest kept bit) to the offset for half-even.
+macro_rules! q15_finish_step {
+    ($a:literal, $at:literal, [$($parity:literal),*]) => {
+        concat!(
+            $($parity,)*
+            "qadd ", $a, ", ", $a, ", {t}\n",
+            "ssat {y}, #16, ", $a, ", asr #15\n",
+            "strh {y}, [{out}, #", $at, "]\n",
+            "cmp.w {y}, ", $a, ", asr #15\n",
+            "it ne\n",
+            "addne {cnt}, {cnt}, #1\n",
+        )
+    };
+    (plain $a:literal, $at:literal) => {
+        q15_finish_step!($a, $at, [])
+    };
+    (parity $a:literal, $at:literal) => {
+        q15_finish_step!($a, $at, ["and {t}, {even}, ", $a, ", lsr #15\n", "add {t}, {t}, {off}\n"])
+    };
+}
+
+/// [`dot_block_q15_i32`] with the output step of the proven path fused into the assembly: each
+/// sum rounded by `rounding`, saturated to `i16` and stored into the next slot of `out` (outputs
+/// past its end are computed and counted, not stored); returns how many saturated.
+///
+/// **Numerics:** bit-identical to `MulAcc::finish` (the 32-bit output step of the proven
+/// accumulator) on each sum of [`dot_block_q15_i32`], for every [`Rounding`] mode and every
+/// `i32` sum, wrapped or not: q = ⌊(acc + offset + parity)/2^15⌋ clamped to `i16`, with
+/// offset 2^14 (half-up), 0 (truncate) or 2^14 − 1 plus the lowest kept bit (half-even).
+///
+/// **Cost:** per four outputs, after the sums, six instructions each (`QADD`, `SSAT`, `STRH`,
+/// `CMP`, `IT`, `ADDNE`), two more each for half-even; the rest as [`dot_block_q15_i32`].
+#[inline]
+pub fn dot_block_q15_i32_finished(
+    taps: &[i16],
+    span: &[i16],
+    rounding: Rounding,
+    out: &mut [i16],
+) -> u32 {
+    let len = taps.len();
+    if len == 0 {
+        return 0;
+    }
+    let (offset, even) = rounding.offset_and_parity_i32(1 << 14);
+    let mut saturated = 0u32;
+    let mut rest = span;
+    let mut slots = out;
+    while let (Some(window), true) = (rest.get(..len + 3), slots.len() >= 4) {
+        let Some((four, after)) = core::mem::take(&mut slots).split_first_chunk_mut::<4>() else {
+            break;
+        };
+        let sums = four_outputs(taps, window);
+        saturated = finish_four(sums, offset, even, four, saturated);
+        rest = rest.get(4..).unwrap_or(&[]);
+        slots = after;
+    }
+    let mut slots = slots.iter_mut();
+    singles(
+        len,
+        rest,
+        |w| reversed_sum_i32(0, taps, w),
+        |acc| {
+            let (y, clamped) = finish_fixed_i32::<i16>(acc, rounding);
+            saturated = saturated.wrapping_add(u32::from(clamped));
+            if let Some(slot) = slots.next() {
+                *slot = y;
+            }
+        },
+    );
+    saturated
+}
+
+/// The output step of four proven sums into `out`, counting saturations onto `count`; `offset`
+/// and `even` as `Rounding::offset_and_parity_i32` gives them for half an LSB of 2^14.
+#[inline(always)]
+fn finish_four(sums: [i32; 4], offset: i32, even: i32, out: &mut [i16; 4], count: u32) -> u32 {
+    let [a0, a1, a2, a3] = sums;
+    let mut cnt = count;
+    // The four steps of one kind and the operands both kinds share; `$own` adds the rounding
+    // registers of that kind.
+    macro_rules! four_steps {
+        ($kind:ident, $($own:tt)*) => {
+            asm!(
+                q15_finish_step!($kind "{a0}", "0"),
+                q15_finish_step!($kind "{a1}", "2"),
+                q15_finish_step!($kind "{a2}", "4"),
+                q15_finish_step!($kind "{a3}", "6"),
+                $($own)*
+                out = in(reg) out.as_mut_ptr(),
+                y = out(reg) _,
+                cnt = inout(reg) cnt,
+                a0 = inout(reg) a0 => _,
+                a1 = inout(reg) a1 => _,
+                a2 = inout(reg) a2 => _,
+                a3 = inout(reg) a3 => _,
+                options(nostack),
+            )
+        };
+    }
+    // SAFETY: `out` is a `&mut [i16; 4]`: the four `strh` write its half-words at byte offsets
+    // 0, 2, 4, 6 (2-aligned, inside it); nothing else is read or written in memory; the stack
+    // is untouched; the flags and the Q flag are clobbered (no `preserves_flags`; nothing here
+    // or in Rust reads the Q flag). Every register written is an operand. In the half-even
+    // form `{t}` is a scratch register, set from `{off}` per output.
+    unsafe {
+        if even == 0 {
+            four_steps!(plain, t = in(reg) offset,);
+        } else {
+            four_steps!(parity, off = in(reg) offset, even = in(reg) even, t = out(reg) _,);
+        }
+    }
+    cnt
 }
 
 /// Output m < 4 over `window` (L + 3 samples): Σ_k taps\[k\]·window\[L − 1 + m − k\].

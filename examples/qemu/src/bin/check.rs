@@ -210,6 +210,57 @@ fn dsp_twin_mismatches() -> usize {
         }),
         || [0i32; OUTPUTS],
     );
+    // The fused output step against `MulAcc::finish` on the twin's sums, in every rounding
+    // mode: random and extreme sums (which wrap and saturate), then taps of 0.5 whose sums are
+    // ties half the time (the half-even parity).
+    let finished = |h: &[i16], x: &[i16], fast: &mut [(i16, u32); OUTPUTS], twin: &mut [(i16, u32); OUTPUTS]| {
+        for (m, rounding) in Rounding::ALL.into_iter().enumerate() {
+            let mut out = [0i16; OUTPUTS];
+            let count = arm::dot_block_q15_i32_finished(h, x, rounding, &mut out);
+            let mut sums = [0i32; OUTPUTS];
+            dot_block::<i16, i16, Proven>(h, x, collect(&mut sums));
+            let outputs = x.len() + 1 - h.len();
+            let mut twin_count = 0;
+            let mut twin_out = [0i16; OUTPUTS];
+            for (slot, &acc) in twin_out.iter_mut().zip(&sums).take(outputs) {
+                let (y, clamped) = <i16 as MulAcc<i16, Proven>>::finish(acc, rounding);
+                *slot = y;
+                twin_count += u32::from(clamped);
+            }
+            // Each mode fills its own slots (the count with every output), so a mode's error
+            // is not hidden by another's.
+            for i in (m..outputs).step_by(3) {
+                if let (Some(f), Some(t), Some(&y), Some(&z)) =
+                    (fast.get_mut(i), twin.get_mut(i), out.get(i), twin_out.get(i))
+                {
+                    *f = (y, count);
+                    *t = (z, twin_count);
+                }
+            }
+        }
+    };
+    failures += twin_mismatches(
+        "q15, proven i32 output step (QADD, SSAT)",
+        &mut q15,
+        i16::MIN,
+        finished,
+        None,
+        || [(0i16, 0u32); OUTPUTS],
+    );
+    let mut ties = q15_codes();
+    let mut tap_half = 0u32;
+    failures += twin_mismatches(
+        "q15, proven i32 output step at ties",
+        move || {
+            // Taps and samples come from the same stream: every other value is a tap of 0.5.
+            tap_half += 1;
+            if tap_half % 2 == 0 { 16384 } else { ties() }
+        },
+        16384,
+        finished,
+        None,
+        || [(0i16, 0u32); OUTPUTS],
+    );
     failures += twin_mismatches(
         "q15, i64 sums (SMLALDX)",
         &mut q15,
@@ -359,11 +410,31 @@ fn main() -> ! {
             Err(_) => failures += 1,
         }
     }
-    let mut proven: Fir<'static, i16, N, i16, Acc32<Smoother>> = Fir::proven();
-    failures += run("q15 acc32", &mut proven, adc_q15, |n, y| {
-        expected::Q15_HALF_UP.get(n) == Some(&y)
-    });
-    failures += usize::from(proven.saturations() != expected::Q15_HALF_UP_SATURATIONS);
+    for (name, rounding, want, saturations) in [
+        (
+            "q15 acc32",
+            Rounding::HalfUp,
+            &expected::Q15_HALF_UP,
+            expected::Q15_HALF_UP_SATURATIONS,
+        ),
+        (
+            "q15 acc32 trunc",
+            Rounding::Truncate,
+            &expected::Q15_TRUNCATE,
+            expected::Q15_TRUNCATE_SATURATIONS,
+        ),
+        (
+            "q15 acc32 even",
+            Rounding::HalfEven,
+            &expected::Q15_HALF_EVEN,
+            expected::Q15_HALF_EVEN_SATURATIONS,
+        ),
+    ] {
+        let proven: Fir<'static, i16, N, i16, Acc32<Smoother>> = Fir::proven();
+        let mut proven = proven.with_rounding(rounding);
+        failures += run(name, &mut proven, adc_q15, |n, y| want.get(n) == Some(&y));
+        failures += usize::from(proven.saturations() != saturations);
+    }
     // The linear-phase filter gives the plain filter's outputs bit for bit (on this core it
     // runs the plain assembly sum instead of the folded one; elsewhere the folded sum).
     failures += linear_phase_mismatches(
