@@ -1164,7 +1164,13 @@ where
 {
     let c = N / 2;
     let h: Vec<i64> = (0..N)
-        .map(|k| if k != c && k.abs_diff(c) % 2 == 0 { 0 } else { h[k] })
+        .map(|k| {
+            if k != c && k.abs_diff(c) % 2 == 0 {
+                0
+            } else {
+                h[k]
+            }
+        })
         .collect();
     let taps: [T; N] = table(&h);
     let hb = HalfBandDecimator::<S, N, T, W>::with_accumulator(&taps).unwrap();

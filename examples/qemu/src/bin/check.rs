@@ -213,7 +213,10 @@ fn dsp_twin_mismatches() -> usize {
     // The fused output step against `MulAcc::finish` on the twin's sums, in every rounding
     // mode: random and extreme sums (which wrap and saturate), then taps of 0.5 whose sums are
     // ties half the time (the half-even parity).
-    let finished = |h: &[i16], x: &[i16], fast: &mut [(i16, u32); OUTPUTS], twin: &mut [(i16, u32); OUTPUTS]| {
+    let finished = |h: &[i16],
+                    x: &[i16],
+                    fast: &mut [(i16, u32); OUTPUTS],
+                    twin: &mut [(i16, u32); OUTPUTS]| {
         for (m, rounding) in Rounding::ALL.into_iter().enumerate() {
             let mut out = [0i16; OUTPUTS];
             let count = arm::dot_block_q15_i32_finished(h, x, rounding, &mut out);
@@ -230,9 +233,12 @@ fn dsp_twin_mismatches() -> usize {
             // Each mode fills its own slots (the count with every output), so a mode's error
             // is not hidden by another's.
             for i in (m..outputs).step_by(3) {
-                if let (Some(f), Some(t), Some(&y), Some(&z)) =
-                    (fast.get_mut(i), twin.get_mut(i), out.get(i), twin_out.get(i))
-                {
+                if let (Some(f), Some(t), Some(&y), Some(&z)) = (
+                    fast.get_mut(i),
+                    twin.get_mut(i),
+                    out.get(i),
+                    twin_out.get(i),
+                ) {
                     *f = (y, count);
                     *t = (z, twin_count);
                 }
