@@ -267,6 +267,42 @@ fn dsp_twin_mismatches() -> usize {
         None,
         || [(0i16, 0u32); OUTPUTS],
     );
+    // Sums just below i32::MAX: 2^30 + (2^30 − 2^15) + 20000 = 2^31 − 12768, in the windows
+    // (−1, −1 + 2^-15, 2^-15) or their reverse of the repeating input, whichever way the kernel
+    // pairs taps and samples, and in groups of four outputs (the fused path). The rounding
+    // offset must saturate there (QADD), where a plain add would wrap to a negative output;
+    // every rounding mode, every output, and the saturation count.
+    let near_max = {
+        let h = [i16::MIN, i16::MIN, 20000];
+        let mut x = [0i16; 14];
+        for (v, &p) in x
+            .iter_mut()
+            .zip([i16::MIN, i16::MIN + 1, 1, i16::MIN + 1].iter().cycle())
+        {
+            *v = p;
+        }
+        let outputs = x.len() + 1 - h.len();
+        let mut mismatches = 0;
+        for rounding in Rounding::ALL {
+            let mut out = [0i16; OUTPUTS];
+            let count = arm::dot_block_q15_i32_finished(&h, &x, rounding, &mut out);
+            let mut sums = [0i32; OUTPUTS];
+            dot_block::<i16, i16, Proven>(&h, &x, collect(&mut sums));
+            let mut twin_count = 0;
+            for (&y, &acc) in out.iter().zip(&sums).take(outputs) {
+                let (z, clamped) = <i16 as MulAcc<i16, Proven>>::finish(acc, rounding);
+                twin_count += u32::from(clamped);
+                mismatches += usize::from(y != z);
+            }
+            mismatches += usize::from(count != twin_count);
+        }
+        mismatches
+    };
+    hprintln!(
+        "kernel twin q15, proven i32 output step at sums near i32::MAX: {} mismatches",
+        near_max
+    );
+    failures += near_max;
     failures += twin_mismatches(
         "q15, i64 sums (SMLALDX)",
         &mut q15,
