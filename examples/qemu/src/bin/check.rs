@@ -213,23 +213,28 @@ fn dsp_twin_mismatches() -> usize {
     // The fused output step against `MulAcc::finish` on the twin's sums, in every rounding
     // mode: random and extreme sums (which wrap and saturate), then taps of 0.5 whose sums are
     // ties half the time (the half-even parity).
+    // The fused step's outputs and count, and the twin's: the portable sums, each finished.
+    let fused_and_twin = |h: &[i16], x: &[i16], rounding| {
+        let mut out = [0i16; OUTPUTS];
+        let count = arm::dot_block_q15_i32_finished(h, x, rounding, &mut out);
+        let mut sums = [0i32; OUTPUTS];
+        dot_block::<i16, i16, Proven>(h, x, collect(&mut sums));
+        let mut twin_count = 0;
+        let mut twin_out = [0i16; OUTPUTS];
+        for (slot, &acc) in twin_out.iter_mut().zip(&sums).take(x.len() + 1 - h.len()) {
+            let (y, clamped) = <i16 as MulAcc<i16, Proven>>::finish(acc, rounding);
+            *slot = y;
+            twin_count += u32::from(clamped);
+        }
+        (out, count, twin_out, twin_count)
+    };
     let finished = |h: &[i16],
                     x: &[i16],
                     fast: &mut [(i16, u32); OUTPUTS],
                     twin: &mut [(i16, u32); OUTPUTS]| {
+        let outputs = x.len() + 1 - h.len();
         for (m, rounding) in Rounding::ALL.into_iter().enumerate() {
-            let mut out = [0i16; OUTPUTS];
-            let count = arm::dot_block_q15_i32_finished(h, x, rounding, &mut out);
-            let mut sums = [0i32; OUTPUTS];
-            dot_block::<i16, i16, Proven>(h, x, collect(&mut sums));
-            let outputs = x.len() + 1 - h.len();
-            let mut twin_count = 0;
-            let mut twin_out = [0i16; OUTPUTS];
-            for (slot, &acc) in twin_out.iter_mut().zip(&sums).take(outputs) {
-                let (y, clamped) = <i16 as MulAcc<i16, Proven>>::finish(acc, rounding);
-                *slot = y;
-                twin_count += u32::from(clamped);
-            }
+            let (out, count, twin_out, twin_count) = fused_and_twin(h, x, rounding);
             // Each mode fills its own slots (the count with every output), so a mode's error
             // is not hidden by another's.
             for i in (m..outputs).step_by(3) {
@@ -284,17 +289,13 @@ fn dsp_twin_mismatches() -> usize {
         let outputs = x.len() + 1 - h.len();
         let mut mismatches = 0;
         for rounding in Rounding::ALL {
-            let mut out = [0i16; OUTPUTS];
-            let count = arm::dot_block_q15_i32_finished(&h, &x, rounding, &mut out);
-            let mut sums = [0i32; OUTPUTS];
-            dot_block::<i16, i16, Proven>(&h, &x, collect(&mut sums));
-            let mut twin_count = 0;
-            for (&y, &acc) in out.iter().zip(&sums).take(outputs) {
-                let (z, clamped) = <i16 as MulAcc<i16, Proven>>::finish(acc, rounding);
-                twin_count += u32::from(clamped);
-                mismatches += usize::from(y != z);
-            }
-            mismatches += usize::from(count != twin_count);
+            let (out, count, twin_out, twin_count) = fused_and_twin(&h, &x, rounding);
+            let differ = out
+                .iter()
+                .zip(&twin_out)
+                .take(outputs)
+                .filter(|(a, b)| a != b);
+            mismatches += differ.count() + usize::from(count != twin_count);
         }
         mismatches
     };
